@@ -1,0 +1,95 @@
+// `npm test`: the set-up of `npm start` on a fresh `boxwright_test` database, then
+// svelte-check, vitest (unit + integration) and Playwright against the built app.
+import { spawn } from 'node:child_process';
+import { existsSync, mkdirSync, readFileSync, rmSync } from 'node:fs';
+import { join } from 'node:path';
+import {
+	dataDir,
+	ensureBuild,
+	ensureDatabase,
+	ensureDebianPackage,
+	ensureDependencies,
+	loadEnvFile,
+	log,
+	migrate,
+	root,
+	run,
+	seed,
+	waitForHttp
+} from './lib/setup.mjs';
+
+loadEnvFile();
+ensureDependencies();
+const db = await ensureDatabase({ database: 'boxwright_test', fresh: true });
+const chromium = ensureDebianPackage('chromium', 'chromium', 'The browser tests');
+migrate(db.url);
+seed(db.url);
+
+const results = join(dataDir(), 'test-results');
+rmSync(results, { recursive: true, force: true });
+mkdirSync(results, { recursive: true });
+
+const failures = [];
+if (run('npm', ['run', '-s', 'check']) !== 0) failures.push('svelte-check');
+ensureBuild();
+
+const port = process.env.TEST_PORT ?? '3100';
+const baseUrl = `http://127.0.0.1:${port}`;
+const env = {
+	...process.env,
+	DATABASE_URL: db.url,
+	PORT: port,
+	ORIGIN: baseUrl,
+	BASE_URL: baseUrl,
+	FACILITY_TZ: process.env.FACILITY_TZ ?? 'Europe/Berlin',
+	CHROMIUM_PATH: chromium,
+	PLAYWRIGHT_SKIP_BROWSER_DOWNLOAD: '1'
+};
+const server = spawn('node', ['build'], {
+	cwd: root,
+	stdio: ['ignore', 'inherit', 'inherit'],
+	env
+});
+let code;
+try {
+	await waitForHttp(`${baseUrl}/api/health`, 60, server);
+	const vitestJson = join(results, 'vitest.json');
+	if (
+		run(
+			'npx',
+			['vitest', 'run', '--reporter=default', '--reporter=json', `--outputFile.json=${vitestJson}`],
+			{ env }
+		) !== 0
+	)
+		failures.push('vitest');
+	const playwrightJson = join(results, 'playwright.json');
+	if (
+		run('npx', ['playwright', 'test'], {
+			env: { ...env, PLAYWRIGHT_JSON_OUTPUT_NAME: playwrightJson }
+		}) !== 0
+	)
+		failures.push('playwright');
+
+	const counts = { passed: 0, failed: 0, skipped: 0 };
+	if (existsSync(vitestJson)) {
+		const v = JSON.parse(readFileSync(vitestJson, 'utf8'));
+		counts.passed += v.numPassedTests;
+		counts.failed += v.numFailedTests;
+		counts.skipped += v.numPendingTests + v.numTodoTests;
+	}
+	if (existsSync(playwrightJson)) {
+		const p = JSON.parse(readFileSync(playwrightJson, 'utf8')).stats;
+		counts.passed += p.expected + p.flaky;
+		counts.failed += p.unexpected;
+		counts.skipped += p.skipped;
+	}
+	if (counts.failed === 0 && failures.length) counts.failed = failures.length;
+	if (failures.length) log(`failed: ${failures.join(', ')}`);
+	console.log(`\n${counts.passed} passed, ${counts.failed} failed, ${counts.skipped} skipped`);
+	code = failures.length || counts.failed || counts.passed === 0 ? 1 : 0;
+} finally {
+	server.kill('SIGTERM');
+	await new Promise((done) => (server.exitCode !== null ? done() : server.once('exit', done)));
+	await db.stop();
+}
+process.exit(code);

@@ -1,0 +1,16 @@
+// See https://svelte.dev/docs/kit/types#app.d.ts
+declare global {
+	namespace App {
+		interface Error {
+			message: string;
+			code?: string;
+			details?: unknown;
+		}
+		interface Locals {
+			user: import('lucia').User | null;
+			session: import('lucia').Session | null;
+		}
+	}
+}
+
+export {};

@@ -1,0 +1,38 @@
+import type { Handle, HandleServerError } from '@sveltejs/kit';
+import { sequence } from '@sveltejs/kit/hooks';
+import { building } from '$app/environment';
+import { readSession } from '$lib/server/auth';
+import { pool } from '$lib/server/db';
+import { shapeApiError } from '$lib/server/http';
+
+const isApi = (path: string) => path.startsWith('/api/') || path.startsWith('/ical/');
+
+const session: Handle = async ({ event, resolve }) => {
+	const { user, session } = await readSession(event.cookies);
+	event.locals.user = user;
+	event.locals.session = session;
+	return resolve(event);
+};
+
+/** API routes always answer errors as `{ error: { code, message, details } }` in JSON. */
+const apiErrors: Handle = async ({ event, resolve }) => {
+	if (!isApi(event.url.pathname)) return resolve(event);
+	// SvelteKit picks JSON or an HTML page for errors from the Accept header.
+	event.request.headers.set('accept', 'application/json');
+	return shapeApiError(await resolve(event));
+};
+
+export const handle = sequence(apiErrors, session);
+
+export const handleError: HandleServerError = ({ error, event, status, message }) => {
+	if (status === 404) return { message: 'Not found.', code: 'not_found' };
+	console.error(`[boxwright] ${event.request.method} ${event.url.pathname}:`, error);
+	return {
+		message: status >= 500 ? 'Something went wrong on our side. Please try again.' : message,
+		code: status >= 500 ? 'internal' : undefined
+	};
+};
+
+if (!building) {
+	process.on('sveltekit:shutdown', () => void pool.end());
+}

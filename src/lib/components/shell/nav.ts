@@ -1,0 +1,13 @@
+import { hasRole, type Role } from '$lib/domain/roles';
+
+export type NavItem = { href: string; label: string };
+
+/** What the shell links to, by role; the server guards each page regardless. */
+export function navFor(role: Role, isPi: boolean): NavItem[] {
+	const items: NavItem[] = [{ href: '/', label: 'Dashboard' }];
+	if (isPi || hasRole(role, 'manager'))
+		items.push({ href: '/manage/approvals', label: 'Approvals' });
+	if (role === 'admin') items.push({ href: '/admin/users', label: 'Users and roles' });
+	items.push({ href: '/account', label: 'Account' });
+	return items;
+}

@@ -1,0 +1,77 @@
+import { DrizzleMySQLAdapter } from '@lucia-auth/adapter-drizzle';
+import { Lucia, TimeSpan } from 'lucia';
+import { createHash, randomBytes } from 'node:crypto';
+import type { Cookies } from '@sveltejs/kit';
+import { and, eq, ne } from 'drizzle-orm';
+import { config } from './config';
+import { db } from './db';
+import { sessions, users, type Role, type UserStatus } from './db/schema';
+
+const adapter = new DrizzleMySQLAdapter(db, sessions, users);
+
+export const lucia = new Lucia(adapter, {
+	sessionExpiresIn: new TimeSpan(30, 'd'),
+	sessionCookie: {
+		name: 'bw_session',
+		attributes: { secure: config.production, sameSite: 'lax' }
+	},
+	getUserAttributes: (row) => ({
+		email: row.email,
+		name: row.name,
+		role: row.role,
+		status: row.status
+	})
+});
+
+declare module 'lucia' {
+	interface Register {
+		Lucia: typeof lucia;
+		UserId: number;
+		DatabaseUserAttributes: { email: string; name: string; role: Role; status: UserStatus };
+	}
+}
+
+/** The cookie carries a random token; the database keeps only its SHA-256. */
+function sessionIdFor(token: string): string {
+	return createHash('sha256').update(token).digest('hex');
+}
+
+export async function startSession(cookies: Cookies, userId: number): Promise<string> {
+	const token = randomBytes(32).toString('base64url');
+	const session = await lucia.createSession(userId, {}, { sessionId: sessionIdFor(token) });
+	setCookie(cookies, token, session.expiresAt);
+	return session.id;
+}
+
+function setCookie(cookies: Cookies, token: string, expiresAt: Date) {
+	const cookie = lucia.createSessionCookie(token);
+	cookies.set(cookie.name, cookie.value, { ...cookie.attributes, path: '/', expires: expiresAt });
+}
+
+/** Reads the session cookie; refreshes it when Lucia extended the session. */
+export async function readSession(cookies: Cookies) {
+	const token = cookies.get(lucia.sessionCookieName);
+	if (!token || token.length > 100) return { user: null, session: null };
+	const { session, user } = await lucia.validateSession(sessionIdFor(token));
+	if (!session || !user || user.status !== 'active') {
+		cookies.delete(lucia.sessionCookieName, { path: '/' });
+		if (session) await lucia.invalidateSession(session.id);
+		return { user: null, session: null };
+	}
+	if (session.fresh) setCookie(cookies, token, session.expiresAt);
+	return { user, session };
+}
+
+export async function endSession(cookies: Cookies, sessionId: string | undefined) {
+	if (sessionId) await lucia.invalidateSession(sessionId);
+	cookies.delete(lucia.sessionCookieName, { path: '/' });
+}
+
+/** Ends every session of the user except the one given (after a password change). */
+export async function endOtherSessions(userId: number, keepSessionId: string) {
+	await db.delete(sessions).where(and(eq(sessions.userId, userId), ne(sessions.id, keepSessionId)));
+}
+
+export async function endAllSessions(userId: number) {
+	await lucia.invalidateUserSessions(userId);
+}

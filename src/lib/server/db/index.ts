@@ -1,0 +1,11 @@
+import { building } from '$app/environment';
+import { config } from '../config';
+import { connect, type Database } from './connect';
+
+// The build imports server modules to analyse them; it has no database.
+const connection = building ? null : connect(config.databaseUrl(), config.dbPoolSize);
+
+export const db = connection?.db as Database;
+export const pool = connection?.pool as ReturnType<typeof connect>['pool'];
+
+export type Transaction = Parameters<Parameters<Database['transaction']>[0]>[0];

@@ -1,0 +1,4 @@
+export * from './users';
+export * from './groups';
+export * from './audit';
+export * from './rateLimits';

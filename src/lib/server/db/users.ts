@@ -1,0 +1,38 @@
+import { datetime, index, int, mysqlEnum, mysqlTable, varchar } from 'drizzle-orm/mysql-core';
+import { sql } from 'drizzle-orm';
+
+import { roles } from '../../domain/roles';
+export type { Role } from '../../domain/roles';
+
+/** pending: registered, waiting for a PI or manager; suspended: may not sign in. */
+export const userStatuses = ['pending', 'active', 'suspended'] as const;
+export type UserStatus = (typeof userStatuses)[number];
+
+export const users = mysqlTable('users', {
+	id: int().autoincrement().primaryKey(),
+	email: varchar({ length: 254 }).notNull().unique(),
+	name: varchar({ length: 120 }).notNull(),
+	passwordHash: varchar({ length: 255 }).notNull(),
+	role: mysqlEnum(roles).notNull().default('member'),
+	status: mysqlEnum(userStatuses).notNull().default('pending'),
+	createdAt: datetime({ mode: 'date' })
+		.notNull()
+		.default(sql`CURRENT_TIMESTAMP`),
+	approvedAt: datetime({ mode: 'date' }),
+	approvedBy: int()
+});
+
+/** Lucia sessions. `id` is the SHA-256 of the cookie's token, so a leaked table opens nothing. */
+export const sessions = mysqlTable(
+	'sessions',
+	{
+		id: varchar({ length: 64 }).primaryKey(),
+		userId: int()
+			.notNull()
+			.references(() => users.id, { onDelete: 'cascade' }),
+		expiresAt: datetime({ mode: 'date' }).notNull()
+	},
+	(t) => [index('sessions_user_idx').on(t.userId)]
+);
+
+export type User = typeof users.$inferSelect;

@@ -1,0 +1,322 @@
+import { and, asc, eq, inArray, sql } from 'drizzle-orm';
+import { db } from '../db';
+import { groupMemberships, researchGroups, users, type Role, type UserStatus } from '../db/schema';
+import { hashPassword, verifyDecoy, verifyPassword } from '../password';
+import { clearFailedSignIns, recordFailedSignIn, signInRetryAfter } from '../rate-limit';
+import { hasRole } from '../guard';
+import { audit } from './audit';
+import { forbidden, isDuplicateKey, notFound, ServiceError } from './errors';
+
+export type Actor = { id: number; role: Role };
+
+export type Registration = { name: string; email: string; password: string; groupId: number };
+
+/** Creates a pending account and its request to join a group, together or not at all. */
+export async function register(input: Registration): Promise<number> {
+	const [group] = await db
+		.select({ id: researchGroups.id })
+		.from(researchGroups)
+		.where(eq(researchGroups.id, input.groupId));
+	if (!group)
+		throw new ServiceError(400, 'Choose one of the listed groups.', {
+			fields: { groupId: 'Choose one of the listed groups.' }
+		});
+
+	const passwordHash = await hashPassword(input.password);
+	try {
+		return await db.transaction(async (tx) => {
+			const [created] = await tx
+				.insert(users)
+				.values({ name: input.name, email: input.email, passwordHash, status: 'pending' })
+				.$returningId();
+			await tx.insert(groupMemberships).values({ groupId: group.id, userId: created.id });
+			await audit(tx, {
+				actorId: created.id,
+				action: 'user.registered',
+				entity: 'user',
+				entityId: created.id,
+				details: { groupId: group.id }
+			});
+			return created.id;
+		});
+	} catch (e) {
+		if (isDuplicateKey(e)) {
+			const message = 'An account with this e-mail already exists. Sign in, or ask a manager.';
+			throw new ServiceError(409, message, { fields: { email: message } });
+		}
+		throw e;
+	}
+}
+
+export type SignInResult =
+	| { kind: 'ok'; userId: number }
+	| { kind: 'invalid' }
+	| { kind: 'pending' }
+	| { kind: 'suspended' }
+	| { kind: 'throttled'; retryAfterSeconds: number };
+
+/**
+ * Checks a password. An unknown e-mail and a wrong password get the same answer and take
+ * the same time; only with the right password does a pending or suspended account say so.
+ */
+export async function checkSignIn(
+	email: string,
+	password: string,
+	address: string
+): Promise<SignInResult> {
+	const retryAfterSeconds = await signInRetryAfter(email, address);
+	if (retryAfterSeconds > 0) return { kind: 'throttled', retryAfterSeconds };
+
+	const [user] = await db
+		.select({ id: users.id, passwordHash: users.passwordHash, status: users.status })
+		.from(users)
+		.where(eq(users.email, email));
+	const valid = user
+		? await verifyPassword(user.passwordHash, password)
+		: await verifyDecoy(password);
+	if (!user || !valid) {
+		await recordFailedSignIn(email, address);
+		return { kind: 'invalid' };
+	}
+	await clearFailedSignIns(email, address);
+	if (user.status === 'pending') return { kind: 'pending' };
+	if (user.status === 'suspended') return { kind: 'suspended' };
+	return { kind: 'ok', userId: user.id };
+}
+
+export const signInMessages = {
+	invalid: 'That e-mail and password do not match an account.',
+	pending:
+		"Your account is waiting for approval by your group's PI or a facility manager. You can sign in once it is approved.",
+	suspended: 'This account is suspended. Ask a facility manager.',
+	throttled: (seconds: number) =>
+		`Too many failed sign-ins. Try again in ${Math.ceil(seconds / 60)} minute${seconds > 60 ? 's' : ''}.`
+};
+
+/** The groups a user leads as PI. */
+export async function groupsLedBy(userId: number) {
+	return db
+		.select({ id: researchGroups.id, name: researchGroups.name })
+		.from(researchGroups)
+		.where(eq(researchGroups.piUserId, userId));
+}
+
+/** The user's profile as /api/me and the shell show it. */
+export async function profile(userId: number) {
+	const [user] = await db
+		.select({
+			id: users.id,
+			email: users.email,
+			name: users.name,
+			role: users.role,
+			status: users.status
+		})
+		.from(users)
+		.where(eq(users.id, userId));
+	if (!user) throw notFound('The user');
+	const groups = await db
+		.select({
+			id: researchGroups.id,
+			name: researchGroups.name,
+			costCentre: researchGroups.costCentre,
+			piUserId: researchGroups.piUserId,
+			status: groupMemberships.status
+		})
+		.from(groupMemberships)
+		.innerJoin(researchGroups, eq(researchGroups.id, groupMemberships.groupId))
+		.where(and(eq(groupMemberships.userId, userId), eq(groupMemberships.status, 'active')))
+		.orderBy(asc(groupMemberships.requestedAt));
+	const led = await groupsLedBy(userId);
+	const primary = groups[0] ?? null;
+	return {
+		...user,
+		group: primary && {
+			id: primary.id,
+			name: primary.name,
+			costCentre: primary.costCentre,
+			isPi: primary.piUserId === userId
+		},
+		groups: groups.map((g) => ({ id: g.id, name: g.name, isPi: g.piUserId === userId })),
+		leads: led
+	};
+}
+
+export type PendingAccount = {
+	userId: number;
+	name: string;
+	email: string;
+	registeredAt: Date;
+	groupId: number;
+	groupName: string;
+};
+
+/** Pending registrations the actor may decide: all for managers, their groups' for PIs. */
+export async function pendingAccountsFor(actor: Actor): Promise<PendingAccount[]> {
+	const base = db
+		.select({
+			userId: users.id,
+			name: users.name,
+			email: users.email,
+			registeredAt: users.createdAt,
+			groupId: researchGroups.id,
+			groupName: researchGroups.name
+		})
+		.from(users)
+		.innerJoin(groupMemberships, eq(groupMemberships.userId, users.id))
+		.innerJoin(researchGroups, eq(researchGroups.id, groupMemberships.groupId))
+		.$dynamic();
+	const pending = and(eq(users.status, 'pending'), eq(groupMemberships.status, 'pending'));
+	const rows = hasRole(actor.role, 'manager')
+		? await base.where(pending).orderBy(asc(users.createdAt))
+		: await base
+				.where(and(pending, eq(researchGroups.piUserId, actor.id)))
+				.orderBy(asc(users.createdAt));
+	return rows;
+}
+
+export async function countPendingFor(actor: Actor): Promise<number> {
+	return (await pendingAccountsFor(actor)).length;
+}
+
+/** May the actor decide this pending account? Managers always; a PI for their own group. */
+async function decidablePending(actor: Actor, userId: number) {
+	const [row] = await db
+		.select({
+			status: users.status,
+			membershipId: groupMemberships.id,
+			piUserId: researchGroups.piUserId,
+			groupId: researchGroups.id
+		})
+		.from(users)
+		.leftJoin(groupMemberships, eq(groupMemberships.userId, users.id))
+		.leftJoin(researchGroups, eq(researchGroups.id, groupMemberships.groupId))
+		.where(eq(users.id, userId));
+	if (!row) throw notFound('The account');
+	if (row.status !== 'pending')
+		throw new ServiceError(409, 'This account has already been decided.');
+	if (!hasRole(actor.role, 'manager') && row.piUserId !== actor.id) {
+		throw forbidden("Only the group's PI or a facility manager can decide this account.");
+	}
+	return row;
+}
+
+export async function approveAccount(actor: Actor, userId: number) {
+	const row = await decidablePending(actor, userId);
+	await db.transaction(async (tx) => {
+		const now = new Date();
+		await tx
+			.update(users)
+			.set({ status: 'active', approvedAt: now, approvedBy: actor.id })
+			.where(and(eq(users.id, userId), eq(users.status, 'pending')));
+		if (row.membershipId) {
+			await tx
+				.update(groupMemberships)
+				.set({ status: 'active', decidedAt: now, decidedBy: actor.id })
+				.where(eq(groupMemberships.id, row.membershipId));
+		}
+		await audit(tx, {
+			actorId: actor.id,
+			action: 'user.approved',
+			entity: 'user',
+			entityId: userId,
+			details: { groupId: row.groupId }
+		});
+	});
+}
+
+/** Declining removes the pending account, so the person may register again. */
+export async function declineAccount(actor: Actor, userId: number) {
+	const row = await decidablePending(actor, userId);
+	await db.transaction(async (tx) => {
+		const [removed] = await tx
+			.select({ email: users.email })
+			.from(users)
+			.where(eq(users.id, userId));
+		await tx.delete(users).where(and(eq(users.id, userId), eq(users.status, 'pending')));
+		await audit(tx, {
+			actorId: actor.id,
+			action: 'user.declined',
+			entity: 'user',
+			entityId: userId,
+			details: { groupId: row.groupId, email: removed?.email }
+		});
+	});
+}
+
+export async function changePassword(userId: number, current: string, next: string) {
+	const [user] = await db
+		.select({ passwordHash: users.passwordHash })
+		.from(users)
+		.where(eq(users.id, userId));
+	if (!user) throw notFound('The user');
+	if (!(await verifyPassword(user.passwordHash, current))) {
+		const message = 'That is not your current password.';
+		throw new ServiceError(400, message, { fields: { currentPassword: message } });
+	}
+	const passwordHash = await hashPassword(next);
+	await db.transaction(async (tx) => {
+		await tx.update(users).set({ passwordHash }).where(eq(users.id, userId));
+		await audit(tx, {
+			actorId: userId,
+			action: 'user.password_changed',
+			entity: 'user',
+			entityId: userId
+		});
+	});
+}
+
+export type UserRow = {
+	id: number;
+	name: string;
+	email: string;
+	role: Role;
+	status: UserStatus;
+	groups: string;
+};
+
+export async function listUsers(): Promise<UserRow[]> {
+	const rows = await db
+		.select({
+			id: users.id,
+			name: users.name,
+			email: users.email,
+			role: users.role,
+			status: users.status,
+			groups: sql<
+				string | null
+			>`GROUP_CONCAT(${researchGroups.name} ORDER BY ${researchGroups.name} SEPARATOR ', ')`
+		})
+		.from(users)
+		.leftJoin(
+			groupMemberships,
+			and(
+				eq(groupMemberships.userId, users.id),
+				inArray(groupMemberships.status, ['active', 'pending'])
+			)
+		)
+		.leftJoin(researchGroups, eq(researchGroups.id, groupMemberships.groupId))
+		.groupBy(users.id)
+		.orderBy(asc(users.name));
+	return rows.map((r) => ({ ...r, groups: r.groups ?? '' }));
+}
+
+/** Admins only. An admin cannot lower their own role, so a site always keeps one. */
+export async function setRole(actor: Actor, userId: number, role: Role) {
+	if (actor.role !== 'admin') throw forbidden('Only an admin can change roles.');
+	if (actor.id === userId && role !== 'admin') {
+		throw new ServiceError(409, 'You cannot lower your own role; ask another admin.');
+	}
+	const [user] = await db.select({ role: users.role }).from(users).where(eq(users.id, userId));
+	if (!user) throw notFound('The user');
+	if (user.role === role) return;
+	await db.transaction(async (tx) => {
+		await tx.update(users).set({ role }).where(eq(users.id, userId));
+		await audit(tx, {
+			actorId: actor.id,
+			action: 'user.role_changed',
+			entity: 'user',
+			entityId: userId,
+			details: { from: user.role, to: role }
+		});
+	});
+}

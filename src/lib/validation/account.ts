@@ -1,0 +1,55 @@
+import { z } from 'zod';
+
+export const MIN_PASSWORD_LENGTH = 12;
+
+const email = z
+	.string({ error: 'Enter your e-mail address.' })
+	.trim()
+	.toLowerCase()
+	.min(1, 'Enter your e-mail address.')
+	.max(254, 'That e-mail address is too long.')
+	.pipe(z.email({ error: 'Enter a valid e-mail address.' }));
+
+const newPassword = z
+	.string({ error: 'Choose a password.' })
+	.min(MIN_PASSWORD_LENGTH, `Use at least ${MIN_PASSWORD_LENGTH} characters.`)
+	.max(256, 'Use at most 256 characters.');
+
+export const signInSchema = z.object({
+	email,
+	password: z.string({ error: 'Enter your password.' }).min(1, 'Enter your password.').max(256)
+});
+
+export const registerSchema = z.object({
+	name: z
+		.string({ error: 'Enter your name.' })
+		.trim()
+		.min(2, 'Enter your name.')
+		.max(120, 'Use at most 120 characters.'),
+	email,
+	password: newPassword,
+	groupId: z.coerce
+		.number({ error: 'Choose the group you are joining.' })
+		.int('Choose the group you are joining.')
+		.positive('Choose the group you are joining.')
+});
+
+export const changePasswordSchema = z
+	.object({
+		currentPassword: z.string().min(1, 'Enter your current password.').max(256),
+		newPassword,
+		confirmPassword: z.string()
+	})
+	.refine((v) => v.newPassword === v.confirmPassword, {
+		message: 'The two new passwords differ.',
+		path: ['confirmPassword']
+	});
+
+export const roleSchema = z.object({
+	userId: z.coerce.number().int().positive(),
+	role: z.enum(['member', 'trainer', 'manager', 'admin'], { error: 'Choose a role.' })
+});
+
+export const decisionSchema = z.object({
+	userId: z.coerce.number().int().positive()
+});

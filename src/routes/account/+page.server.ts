@@ -1,0 +1,40 @@
+import { fail } from '@sveltejs/kit';
+import { endOtherSessions } from '$lib/server/auth';
+import { requireUser } from '$lib/server/guard';
+import { changePassword, profile } from '$lib/server/services/accounts';
+import { attempt } from '$lib/server/services/errors';
+import { changePasswordSchema } from '$lib/validation/account';
+import { fieldErrors } from '$lib/validation/fields';
+import type { Actions, PageServerLoad } from './$types';
+
+export const load: PageServerLoad = async (event) => {
+	const user = requireUser(event);
+	const me = await profile(user.id);
+	return {
+		profile: { name: me.name, email: me.email, role: me.role, groups: me.groups, leads: me.leads }
+	};
+};
+
+export const actions: Actions = {
+	password: async (event) => {
+		const user = requireUser(event);
+		const parsed = changePasswordSchema.safeParse(
+			Object.fromEntries(await event.request.formData())
+		);
+		if (!parsed.success) return fail(400, { errors: fieldErrors(parsed.error) });
+
+		const result = await attempt(() =>
+			changePassword(user.id, parsed.data.currentPassword, parsed.data.newPassword)
+		);
+		if (!result.ok) {
+			const details = result.error.details as { fields?: Record<string, string> } | undefined;
+			return fail(result.error.status, {
+				errors: details?.fields ?? {},
+				message: result.error.message
+			});
+		}
+		// The session in hand stays; every other one (other browsers, a lost laptop) ends.
+		await endOtherSessions(user.id, event.locals.session!.id);
+		return { changed: true };
+	}
+};

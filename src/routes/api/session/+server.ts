@@ -1,0 +1,27 @@
+import { json } from '@sveltejs/kit';
+import { endSession, startSession } from '$lib/server/auth';
+import { fail, readJson } from '$lib/server/http';
+import { checkSignIn, profile, signInMessages } from '$lib/server/services/accounts';
+import { signInSchema } from '$lib/validation/account';
+import type { RequestHandler } from './$types';
+
+export const POST: RequestHandler = async ({ request, cookies, getClientAddress, setHeaders }) => {
+	const { email, password } = await readJson(request, signInSchema);
+	const result = await checkSignIn(email, password, getClientAddress());
+	if (result.kind === 'throttled') {
+		setHeaders({ 'retry-after': String(result.retryAfterSeconds) });
+		fail(429, signInMessages.throttled(result.retryAfterSeconds), {
+			retryAfterSeconds: result.retryAfterSeconds
+		});
+	}
+	if (result.kind === 'invalid')
+		fail(401, signInMessages.invalid, undefined, 'invalid_credentials');
+	if (result.kind !== 'ok') fail(403, signInMessages[result.kind]);
+	await startSession(cookies, result.userId);
+	return json({ user: await profile(result.userId) });
+};
+
+export const DELETE: RequestHandler = async ({ locals, cookies }) => {
+	await endSession(cookies, locals.session?.id);
+	return new Response(null, { status: 204 });
+};
