@@ -40,7 +40,7 @@ const env = {
 	DATABASE_URL: db.url,
 	PORT: port,
 	ORIGIN: baseUrl,
-	BASE_URL: baseUrl,
+	APP_URL: baseUrl,
 	FACILITY_TZ: process.env.FACILITY_TZ ?? 'Europe/Berlin',
 	CHROMIUM_PATH: chromium,
 	PLAYWRIGHT_SKIP_BROWSER_DOWNLOAD: '1'

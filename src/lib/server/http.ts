@@ -3,6 +3,14 @@ import type { z } from 'zod';
 import { fieldErrors } from '$lib/validation/fields';
 
 /** The codes of DESIGN.md's HTTP contract, by status. */
+const defaultMessage: Record<number, string> = {
+	401: 'Sign in first.',
+	403: 'You may not do that.',
+	404: 'Not found.',
+	405: 'That method is not allowed here.',
+	429: 'Too many requests; try again later.'
+};
+
 const codeByStatus: Record<number, string> = {
 	400: 'invalid_input',
 	401: 'unauthenticated',
@@ -70,7 +78,7 @@ export async function shapeApiError(response: Response): Promise<Response> {
 		{
 			error: {
 				code: body.code ?? codeFor(response.status),
-				message: body.message ?? (response.statusText || 'Request failed.'),
+				message: body.message ?? defaultMessage[response.status] ?? 'The request failed.',
 				...(body.details === undefined ? {} : { details: body.details })
 			}
 		},
