@@ -2,8 +2,9 @@
 // natural keys (e-mail, group name). With SEED_ONLY_WHEN_EMPTY=1 it leaves a database
 // that already has users alone, so `npm start` never undoes what people did in the demo.
 import { eq, sql } from 'drizzle-orm';
-import { connect } from '../src/lib/server/db/connect';
+import { connect, type Database } from '../src/lib/server/db/connect';
 import { groupMemberships, researchGroups, users } from '../src/lib/server/db/schema';
+import { seedBoxesAndBookings } from './seed-boxes';
 import type { Role, UserStatus } from '../src/lib/server/db/users';
 import { hashPassword } from '../src/lib/server/password';
 
@@ -123,7 +124,10 @@ async function main() {
 			} as const;
 			await db.insert(groupMemberships).values(values).onDuplicateKeyUpdate({ set: { status } });
 		}
-		console.log(`[boxwright] demo seeded: ${people.length} people in ${groups.length} groups`);
+		const summary = await seedBoxesAndBookings(db as Database, userIds);
+		console.log(
+			`[boxwright] demo seeded: ${people.length} people in ${groups.length} groups; ${summary}`
+		);
 	} finally {
 		await pool.end();
 	}

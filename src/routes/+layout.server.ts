@@ -1,13 +1,15 @@
+import { config } from '$lib/server/config';
 import { countPendingFor, groupsLedBy } from '$lib/server/services/accounts';
 import type { LayoutServerLoad } from './$types';
 
 export const load: LayoutServerLoad = async ({ locals }) => {
 	const user = locals.user;
-	if (!user) return { user: null };
+	if (!user) return { user: null, tz: config.facilityTz };
 	const led = await groupsLedBy(user.id);
 	const isPi = led.length > 0;
 	const canApprove = isPi || user.role === 'manager' || user.role === 'admin';
 	return {
+		tz: config.facilityTz,
 		user: { id: user.id, name: user.name, email: user.email, role: user.role, isPi },
 		pendingApprovals: canApprove ? await countPendingFor(user) : 0
 	};

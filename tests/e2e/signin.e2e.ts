@@ -1,6 +1,5 @@
 import { expect, test } from '@playwright/test';
-
-const DEMO_PASSWORD = 'demo-pass-2026';
+import { DEMO_PASSWORD } from './support';
 
 test('a member signs in and sees the dashboard', async ({ page }) => {
 	await page.goto('/');

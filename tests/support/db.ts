@@ -2,7 +2,16 @@
 import { randomBytes } from 'node:crypto';
 import { eq } from 'drizzle-orm';
 import { connect } from '../../src/lib/server/db/connect';
-import { groupMemberships, researchGroups, users } from '../../src/lib/server/db/schema';
+import {
+	boxes,
+	boxPorts,
+	boxRequiredModules,
+	certifications,
+	groupMemberships,
+	researchGroups,
+	trainingModules,
+	users
+} from '../../src/lib/server/db/schema';
 import type { Role } from '../../src/lib/domain/roles';
 import { hashPassword } from '../../src/lib/server/password';
 
@@ -70,4 +79,59 @@ export async function userIdByEmail(email: string): Promise<number> {
 	const [row] = await testDb().select({ id: users.id }).from(users).where(eq(users.email, email));
 	if (!row) throw new Error(`no user ${email}`);
 	return row.id;
+}
+
+/** A training module of its own for one test. */
+export async function makeModule(label = 'module', validityMonths = 12) {
+	const [row] = await testDb()
+		.insert(trainingModules)
+		.values({ name: `Test ${label} ${randomBytes(4).toString('hex')}`, validityMonths })
+		.$returningId();
+	return row.id;
+}
+
+/** A box of its own for one test, with the design's default rules unless overridden. */
+export async function makeBox(
+	options: Partial<typeof boxes.$inferInsert> & { modules?: number[] } = {}
+) {
+	const { modules = [], ...values } = options;
+	const db = testDb();
+	const [row] = await db
+		.insert(boxes)
+		.values({
+			name: `Test box ${randomBytes(4).toString('hex')}`,
+			room: 'T0.01',
+			gas: 'Ar',
+			volumeL: 1000,
+			...values
+		})
+		.$returningId();
+	await db.insert(boxPorts).values([
+		{ boxId: row.id, position: 'front-left', diameterMm: 200, sortOrder: 0 },
+		{ boxId: row.id, position: 'front-right', diameterMm: 200, sortOrder: 1 }
+	]);
+	if (modules.length) {
+		await db
+			.insert(boxRequiredModules)
+			.values(modules.map((moduleId) => ({ boxId: row.id, moduleId })));
+	}
+	return row.id;
+}
+
+export async function certify(
+	userId: number,
+	moduleId: number,
+	grantedAt = new Date(Date.now() - 30 * 86_400_000),
+	expiresAt = new Date(Date.now() + 300 * 86_400_000)
+) {
+	await testDb().insert(certifications).values({ userId, moduleId, grantedAt, expiresAt });
+}
+
+/** A member certified for a fresh box: the usual starting point of a booking test. */
+export async function certifiedMemberAndBox(box: Partial<typeof boxes.$inferInsert> = {}) {
+	const moduleId = await makeModule();
+	const boxId = await makeBox({ ...box, modules: [moduleId] });
+	const user = await makeUser('member');
+	await certify(user.id, moduleId);
+	return { user, boxId, moduleId };
 }

@@ -13,7 +13,7 @@ export const lucia = new Lucia(adapter, {
 	sessionExpiresIn: new TimeSpan(30, 'd'),
 	sessionCookie: {
 		name: 'bw_session',
-		attributes: { secure: config.production, sameSite: 'lax' }
+		attributes: { secure: config.secureCookies, sameSite: 'lax' }
 	},
 	getUserAttributes: (row) => ({
 		email: row.email,

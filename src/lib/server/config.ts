@@ -12,7 +12,8 @@ export const config = {
 	facilityTz: process.env.FACILITY_TZ ?? 'Europe/Berlin',
 	facilityName: process.env.FACILITY_NAME ?? 'Boxwright facility',
 	facilityContact: process.env.FACILITY_CONTACT ?? 'manager@example.org',
-	production: process.env.NODE_ENV === 'production' && !process.env.ORIGIN?.startsWith('http://'),
+	/** Secure cookies whenever the public origin is HTTPS. */
+	secureCookies: (process.env.ORIGIN ?? '').startsWith('https://'),
 	/** Failed sign-ins allowed per e-mail and address, and per address, in the window. */
 	signInLimitPerAccount: Number(process.env.SIGNIN_LIMIT_ACCOUNT ?? 5),
 	signInLimitPerAddress: Number(process.env.SIGNIN_LIMIT_ADDRESS ?? 50),

@@ -4,7 +4,14 @@ export type NavItem = { href: string; label: string };
 
 /** What the shell links to, by role; the server guards each page regardless. */
 export function navFor(role: Role, isPi: boolean): NavItem[] {
-	const items: NavItem[] = [{ href: '/', label: 'Dashboard' }];
+	const items: NavItem[] = [
+		{ href: '/', label: 'Dashboard' },
+		{ href: '/calendar', label: 'Calendar' },
+		{ href: '/bookings', label: 'My bookings' },
+		{ href: '/boxes', label: 'Boxes' },
+		{ href: '/training', label: 'Training' }
+	];
+	if (hasRole(role, 'trainer')) items.push({ href: '/manage/training', label: 'Certifications' });
 	if (isPi || hasRole(role, 'manager'))
 		items.push({ href: '/manage/approvals', label: 'Approvals' });
 	if (role === 'admin') items.push({ href: '/admin/users', label: 'Users and roles' });

@@ -1,5 +1,6 @@
-import { bigint, datetime, index, int, json, mysqlTable, varchar } from 'drizzle-orm/mysql-core';
+import { bigint, datetime, index, int, mysqlTable, varchar } from 'drizzle-orm/mysql-core';
 import { sql } from 'drizzle-orm';
+import { json } from './types';
 
 /** Who did what, when, to which record. Rows are only ever inserted. */
 export const auditLog = mysqlTable(

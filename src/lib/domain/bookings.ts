@@ -1,0 +1,41 @@
+export const bookingStatuses = [
+	'pending',
+	'confirmed',
+	'cancelled',
+	'completed',
+	'no_show'
+] as const;
+export type BookingStatus = (typeof bookingStatuses)[number];
+
+/** Statuses that hold box time (and count towards the weekly quota). */
+export const holdingStatuses: BookingStatus[] = ['pending', 'confirmed', 'completed', 'no_show'];
+
+export const cancelCauses = ['user', 'manager', 'outage'] as const;
+export type CancelCause = (typeof cancelCauses)[number];
+
+export const outageKinds = [
+	'glove_change',
+	'regeneration',
+	'leak',
+	'sensor',
+	'atmosphere',
+	'other'
+] as const;
+export type OutageKind = (typeof outageKinds)[number];
+
+export const outageKindLabel: Record<OutageKind, string> = {
+	glove_change: 'Glove change',
+	regeneration: 'Purifier regeneration',
+	leak: 'Leak',
+	sensor: 'Sensor fault',
+	atmosphere: 'Atmosphere out of spec',
+	other: 'Other upkeep'
+};
+
+export const statusLabel: Record<BookingStatus, string> = {
+	pending: 'Waiting for approval',
+	confirmed: 'Confirmed',
+	cancelled: 'Cancelled',
+	completed: 'Completed',
+	no_show: 'No-show'
+};

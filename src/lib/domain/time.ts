@@ -1,0 +1,70 @@
+import { DateTime } from 'luxon';
+
+/** Local wall-clock parts of an instant in the facility's zone. */
+export function local(at: Date, tz: string): DateTime {
+	return DateTime.fromJSDate(at, { zone: tz });
+}
+
+/** Interprets a date (YYYY-MM-DD) and time (HH:mm) as wall-clock time in `tz`. */
+export function fromLocal(date: string, time: string, tz: string): Date | null {
+	const dt = DateTime.fromISO(`${date}T${time}`, { zone: tz });
+	if (!dt.isValid) return null;
+	// A wall-clock time skipped by a spring-forward change does not exist: refuse it.
+	if (dt.toFormat('yyyy-MM-dd') !== date || dt.toFormat('HH:mm') !== time) return null;
+	return dt.toJSDate();
+}
+
+/** ISO 8601 with the facility zone's offset, e.g. 2026-12-01T09:00:00.000+01:00. */
+export function isoInZone(at: Date, tz: string): string {
+	return local(at, tz).toISO()!;
+}
+
+/** "Tue 1 Dec, 09:00" in the facility zone. */
+export function formatDateTime(at: Date, tz: string): string {
+	return local(at, tz).toFormat('ccc d LLL, HH:mm');
+}
+
+export function formatTime(at: Date, tz: string): string {
+	return local(at, tz).toFormat('HH:mm');
+}
+
+export function formatDate(at: Date, tz: string): string {
+	return local(at, tz).toFormat('ccc d LLL yyyy');
+}
+
+/** "Tue 1 Dec, 09:00–11:30" (or across days, both dates). */
+export function formatRange(start: Date, end: Date, tz: string): string {
+	const a = local(start, tz);
+	const b = local(end, tz);
+	if (a.hasSame(b, 'day')) return `${a.toFormat('ccc d LLL, HH:mm')}–${b.toFormat('HH:mm')}`;
+	return `${a.toFormat('ccc d LLL, HH:mm')} – ${b.toFormat('ccc d LLL, HH:mm')}`;
+}
+
+export const minutesBetween = (a: Date, b: Date) => (b.getTime() - a.getTime()) / 60_000;
+
+/** "12 min ago", "3 h ago", "2 d ago": the age of a reading at a glance. */
+export function ago(at: Date, now = new Date()): string {
+	const minutes = Math.max(0, Math.round((now.getTime() - at.getTime()) / 60_000));
+	if (minutes < 1) return 'just now';
+	if (minutes < 90) return `${minutes} min ago`;
+	const hours = Math.round(minutes / 60);
+	if (hours < 36) return `${hours} h ago`;
+	return `${Math.round(hours / 24)} d ago`;
+}
+
+/** The wall-clock time of an instant in `tz`, as a floating ISO string (no offset). */
+export function wallClock(at: Date | string, tz: string): string {
+	const dt =
+		typeof at === 'string' ? DateTime.fromISO(at, { setZone: true }) : DateTime.fromJSDate(at);
+	return dt.setZone(tz).toFormat("yyyy-MM-dd'T'HH:mm:ss");
+}
+
+/** A floating wall-clock string ("2026-12-02T10:00…") read as time in `tz`. */
+export function fromWallClock(value: string, tz: string): Date {
+	return DateTime.fromISO(value.slice(0, 19), { zone: tz }).toJSDate();
+}
+
+/** The zone's offset now, as "+01:00". */
+export function currentOffset(tz: string, at = new Date()): string {
+	return DateTime.fromJSDate(at).setZone(tz).toFormat('ZZ');
+}

@@ -1,0 +1,77 @@
+import {
+	boolean,
+	datetime,
+	decimal,
+	index,
+	int,
+	mysqlEnum,
+	mysqlTable,
+	primaryKey,
+	smallint,
+	text,
+	varchar
+} from 'drizzle-orm/mysql-core';
+import { sql } from 'drizzle-orm';
+import { json } from './types';
+import { gases, boxStatuses, atmosphereStates } from '../../domain/boxes';
+import { trainingModules } from './training';
+
+export const boxes = mysqlTable('boxes', {
+	id: int().autoincrement().primaryKey(),
+	name: varchar({ length: 80 }).notNull().unique(),
+	room: varchar({ length: 80 }).notNull(),
+	gas: mysqlEnum(gases).notNull(),
+	volumeL: int().notNull(),
+	description: text(),
+	status: mysqlEnum(boxStatuses).notNull().default('in_service'),
+	atmosphereState: mysqlEnum(atmosphereStates).notNull().default('ok'),
+	// Atmosphere thresholds in ppm.
+	o2WarnPpm: decimal({ precision: 8, scale: 2, mode: 'number' }).notNull().default(1),
+	o2AlarmPpm: decimal({ precision: 8, scale: 2, mode: 'number' }).notNull().default(10),
+	h2oWarnPpm: decimal({ precision: 8, scale: 2, mode: 'number' }).notNull().default(1),
+	h2oAlarmPpm: decimal({ precision: 8, scale: 2, mode: 'number' }).notNull().default(10),
+	// Hourly rates in the facility's currency.
+	rateInternal: decimal({ precision: 10, scale: 2, mode: 'number' }).notNull().default(0),
+	rateExternal: decimal({ precision: 10, scale: 2, mode: 'number' }).notNull().default(0),
+	// Booking rules (minutes unless named otherwise).
+	slotStepMin: smallint().notNull().default(15),
+	minLengthMin: smallint().notNull().default(30),
+	maxLengthMin: smallint().notNull().default(240),
+	horizonDays: smallint().notNull().default(28),
+	weeklyQuotaMin: smallint().notNull().default(720),
+	purgeMin: smallint().notNull().default(30),
+	needsApproval: boolean().notNull().default(false),
+	excludedClasses: json().$type<string[]>().notNull().default([]),
+	createdAt: datetime({ mode: 'date' })
+		.notNull()
+		.default(sql`CURRENT_TIMESTAMP`)
+});
+
+export const boxPorts = mysqlTable(
+	'box_ports',
+	{
+		id: int().autoincrement().primaryKey(),
+		boxId: int()
+			.notNull()
+			.references(() => boxes.id, { onDelete: 'cascade' }),
+		position: varchar({ length: 40 }).notNull(),
+		diameterMm: smallint().notNull(),
+		sortOrder: smallint().notNull().default(0)
+	},
+	(t) => [index('box_ports_box_idx').on(t.boxId)]
+);
+
+export const boxRequiredModules = mysqlTable(
+	'box_required_modules',
+	{
+		boxId: int()
+			.notNull()
+			.references(() => boxes.id, { onDelete: 'cascade' }),
+		moduleId: int()
+			.notNull()
+			.references(() => trainingModules.id, { onDelete: 'restrict' })
+	},
+	(t) => [primaryKey({ columns: [t.boxId, t.moduleId] })]
+);
+
+export type Box = typeof boxes.$inferSelect;

@@ -1,0 +1,507 @@
+import { and, asc, desc, eq, gt, gte, inArray, lt, ne, sql } from 'drizzle-orm';
+import { DateTime } from 'luxon';
+import { checkBooking, refusalStatus, type Reason } from '$lib/domain/booking-rules';
+import { holdingStatuses, type BookingStatus } from '$lib/domain/bookings';
+import { hasRole } from '$lib/domain/roles';
+import { isoInZone } from '$lib/domain/time';
+import type { BookingInput } from '$lib/validation/bookings';
+import { config } from '../config';
+import { db, type Transaction } from '../db';
+import {
+	bookings,
+	boxes,
+	boxRequiredModules,
+	certifications,
+	outages,
+	trainingModules,
+	users,
+	type Booking
+} from '../db/schema';
+import type { Actor } from './accounts';
+import { audit } from './audit';
+import { forbidden, notFound, ServiceError } from './errors';
+
+const DEADLOCK = new Set(['ER_LOCK_DEADLOCK', 'ER_LOCK_WAIT_TIMEOUT']);
+
+function isRetryable(e: unknown): boolean {
+	const err = e as { code?: string; errno?: number; cause?: { code?: string; errno?: number } };
+	const code = err?.code ?? err?.cause?.code;
+	const errno = err?.errno ?? err?.cause?.errno;
+	// 1213 is also what a Galera certification conflict reports.
+	return (code !== undefined && DEADLOCK.has(code)) || errno === 1213 || errno === 1205;
+}
+
+/** Runs a transaction again when MariaDB chose it as a deadlock victim. */
+export async function withRetry<T>(work: () => Promise<T>, attempts = 4): Promise<T> {
+	for (let i = 1; ; i++) {
+		try {
+			return await work();
+		} catch (e) {
+			if (i >= attempts || !isRetryable(e)) throw e;
+			await new Promise((done) => setTimeout(done, 10 * 2 ** i + Math.random() * 20));
+		}
+	}
+}
+
+export type PublicBooking = {
+	id: number;
+	boxId: number;
+	userId: number;
+	start: string;
+	end: string;
+	purgeUntil: string | null;
+	purpose: string;
+	chemicalClasses: string[];
+	volatileSolvents: boolean;
+	status: BookingStatus;
+	cancelReason: string | null;
+	cancelCause: string | null;
+};
+
+export function toPublic(b: Booking, tz = config.facilityTz): PublicBooking {
+	return {
+		id: b.id,
+		boxId: b.boxId,
+		userId: b.userId,
+		start: isoInZone(b.startAt, tz),
+		end: isoInZone(b.endAt, tz),
+		purgeUntil: b.blockedUntil > b.endAt ? isoInZone(b.blockedUntil, tz) : null,
+		purpose: b.purpose,
+		chemicalClasses: b.chemicalClasses,
+		volatileSolvents: b.volatileSolvents,
+		status: b.status,
+		cancelReason: b.cancelReason,
+		cancelCause: b.cancelCause
+	};
+}
+
+/** The ISO weeks (facility zone) a span touches, as one UTC window. */
+function weeksWindow(start: Date, end: Date) {
+	const from = DateTime.fromJSDate(start, { zone: config.facilityTz }).startOf('week');
+	const to = DateTime.fromJSDate(end, { zone: config.facilityTz })
+		.startOf('week')
+		.plus({ weeks: 1 });
+	return { from: from.toJSDate(), to: to.toJSDate() };
+}
+
+/** The longest booking (7 d) plus purge (12 h) fits in this; bounds how far back an overlapping hold starts. */
+const MAX_LOOKBACK_MS = 8 * 86_400_000;
+
+/** Reads everything the rules need, under the box row's lock, and checks the request. */
+async function evaluate(
+	tx: Transaction,
+	userId: number,
+	input: BookingInput,
+	now: Date,
+	ignoreBookingId?: number
+) {
+	const [box] = await tx.select().from(boxes).where(eq(boxes.id, input.boxId)).for('update');
+	if (!box)
+		throw new ServiceError(404, 'The box was not found.', { fields: { boxId: 'No such box.' } });
+
+	const purgeEnd = new Date(input.end.getTime() + box.purgeMin * 60_000);
+	const week = weeksWindow(input.start, input.end);
+	const notThis = ignoreBookingId ? ne(bookings.id, ignoreBookingId) : undefined;
+	const [requiredModules, certs, others, outageRows, userRows] = await Promise.all([
+		tx
+			.select({ id: trainingModules.id, name: trainingModules.name })
+			.from(boxRequiredModules)
+			.innerJoin(trainingModules, eq(trainingModules.id, boxRequiredModules.moduleId))
+			.where(eq(boxRequiredModules.boxId, box.id)),
+		tx
+			.select({
+				moduleId: certifications.moduleId,
+				grantedAt: certifications.grantedAt,
+				expiresAt: certifications.expiresAt
+			})
+			.from(certifications)
+			.where(and(eq(certifications.userId, userId), sql`${certifications.revokedAt} IS NULL`)),
+		// Held bookings whose time or purge reaches into ours, or that start inside our purge.
+		tx
+			.select({
+				id: bookings.id,
+				startAt: bookings.startAt,
+				endAt: bookings.endAt,
+				blockedUntil: bookings.blockedUntil,
+				status: bookings.status
+			})
+			.from(bookings)
+			.where(
+				and(
+					eq(bookings.boxId, box.id),
+					inArray(bookings.status, ['pending', 'confirmed']),
+					lt(bookings.startAt, purgeEnd),
+					gt(bookings.blockedUntil, input.start),
+					gte(bookings.startAt, new Date(input.start.getTime() - MAX_LOOKBACK_MS)),
+					notThis
+				)
+			),
+		tx
+			.select({
+				id: outages.id,
+				startAt: outages.startAt,
+				endAt: outages.endAt,
+				reason: outages.reason
+			})
+			.from(outages)
+			.where(
+				and(
+					eq(outages.boxId, box.id),
+					lt(outages.startAt, purgeEnd),
+					gt(outages.endAt, input.start)
+				)
+			),
+		tx
+			.select({ startAt: bookings.startAt, endAt: bookings.endAt })
+			.from(bookings)
+			.where(
+				and(
+					eq(bookings.boxId, box.id),
+					eq(bookings.userId, userId),
+					inArray(bookings.status, holdingStatuses),
+					lt(bookings.startAt, week.to),
+					gt(bookings.endAt, week.from),
+					notThis
+				)
+			)
+	]);
+
+	const result = checkBooking(
+		{
+			start: input.start,
+			end: input.end,
+			volatileSolvents: input.volatileSolvents,
+			chemicalClasses: input.chemicalClasses
+		},
+		{
+			now,
+			tz: config.facilityTz,
+			box: { ...box, requiredModules },
+			certifications: certs,
+			others,
+			outages: outageRows,
+			userBookings: userRows
+		}
+	);
+	return { box, result, blockedUntil: input.volatileSolvents ? purgeEnd : input.end };
+}
+
+function reasonsForClient(reasons: Reason[]) {
+	return reasons.map((r) => ({
+		code: r.code,
+		message: r.message,
+		...(r.conflict
+			? {
+					conflict: {
+						kind: r.conflict.kind,
+						id: r.conflict.id,
+						start: isoInZone(r.conflict.start, config.facilityTz),
+						end: isoInZone(r.conflict.end, config.facilityTz)
+					}
+				}
+			: {})
+	}));
+}
+
+function refusal(reasons: Reason[], status: 409 | 422): ServiceError {
+	const details = { reasons: reasonsForClient(reasons) };
+	if (status === 409) {
+		return new ServiceError(409, 'Someone else holds that time on the box.', {
+			...details,
+			conflicts: details.reasons.map((r) => r.conflict)
+		});
+	}
+	return new ServiceError(422, 'The booking breaks the box’s rules.', details);
+}
+
+/**
+ * Creates a booking. The box row is locked (SELECT … FOR UPDATE) before anything that
+ * overlaps is read, so two requests for the same slot are serialised by MariaDB and
+ * never both succeed.
+ */
+export async function createBooking(actor: Actor, input: BookingInput, now = new Date()) {
+	return withRetry(() =>
+		db.transaction(async (tx) => {
+			const { box, result, blockedUntil } = await evaluate(tx, actor.id, input, now);
+			const status = refusalStatus(result);
+			if (status) throw refusal(result.reasons, status);
+
+			const bookingStatus: BookingStatus = box.needsApproval ? 'pending' : 'confirmed';
+			const [created] = await tx
+				.insert(bookings)
+				.values({
+					boxId: box.id,
+					userId: actor.id,
+					startAt: input.start,
+					endAt: input.end,
+					blockedUntil,
+					purpose: input.purpose,
+					chemicalClasses: input.chemicalClasses,
+					volatileSolvents: input.volatileSolvents,
+					status: bookingStatus
+				})
+				.$returningId();
+			await audit(tx, {
+				actorId: actor.id,
+				action: 'booking.created',
+				entity: 'booking',
+				entityId: created.id,
+				details: {
+					boxId: box.id,
+					start: input.start.toISOString(),
+					end: input.end.toISOString(),
+					status: bookingStatus
+				}
+			});
+			const [row] = await tx.select().from(bookings).where(eq(bookings.id, created.id));
+			return row;
+		})
+	);
+}
+
+/** Checks a request without saving it (the form's early answer). */
+export async function previewBooking(actor: Actor, input: BookingInput, now = new Date()) {
+	return db.transaction(async (tx) => {
+		const { result } = await evaluate(tx, actor.id, input, now);
+		return { status: refusalStatus(result), reasons: reasonsForClient(result.reasons) };
+	});
+}
+
+export async function getBooking(id: number) {
+	const [row] = await db.select().from(bookings).where(eq(bookings.id, id));
+	return row ?? null;
+}
+
+/** Owner or manager cancels a pending or confirmed booking that has not ended. */
+export async function cancelBooking(
+	actor: Actor,
+	id: number,
+	reason: string | undefined,
+	now = new Date()
+) {
+	return db.transaction(async (tx) => {
+		const [booking] = await tx.select().from(bookings).where(eq(bookings.id, id)).for('update');
+		if (!booking) throw notFound('The booking');
+		const isOwner = booking.userId === actor.id;
+		if (!isOwner && !hasRole(actor.role, 'manager'))
+			throw forbidden('You can only cancel your own bookings.');
+		if (booking.status !== 'pending' && booking.status !== 'confirmed') {
+			throw new ServiceError(409, `This booking is already ${booking.status.replace('_', '-')}.`);
+		}
+		if (booking.endAt <= now) throw new ServiceError(409, 'This booking has already ended.');
+		const cause = isOwner ? 'user' : 'manager';
+		await tx
+			.update(bookings)
+			.set({
+				status: 'cancelled',
+				cancelCause: cause,
+				cancelReason: reason || (isOwner ? 'Cancelled by the booker.' : 'Cancelled by a manager.'),
+				cancelledAt: now,
+				cancelledBy: actor.id,
+				sequence: sql`${bookings.sequence} + 1`
+			})
+			.where(eq(bookings.id, id));
+		await audit(tx, {
+			actorId: actor.id,
+			action: 'booking.cancelled',
+			entity: 'booking',
+			entityId: id,
+			details: { cause, reason }
+		});
+		const [row] = await tx.select().from(bookings).where(eq(bookings.id, id));
+		return row;
+	});
+}
+
+/** Managers confirm or decline bookings on boxes that need approval. */
+export async function decideBooking(
+	actor: Actor,
+	id: number,
+	decision: 'approve' | 'decline',
+	reason?: string,
+	now = new Date()
+) {
+	if (!hasRole(actor.role, 'manager')) throw forbidden('Only a manager can approve bookings.');
+	return db.transaction(async (tx) => {
+		const [booking] = await tx.select().from(bookings).where(eq(bookings.id, id)).for('update');
+		if (!booking) throw notFound('The booking');
+		if (booking.status !== 'pending')
+			throw new ServiceError(409, 'This booking is no longer waiting for approval.');
+		if (decision === 'approve') {
+			await tx
+				.update(bookings)
+				.set({
+					status: 'confirmed',
+					decidedBy: actor.id,
+					decidedAt: now,
+					sequence: sql`${bookings.sequence} + 1`
+				})
+				.where(eq(bookings.id, id));
+		} else {
+			await tx
+				.update(bookings)
+				.set({
+					status: 'cancelled',
+					cancelCause: 'manager',
+					cancelReason: reason ?? 'Declined.',
+					cancelledAt: now,
+					cancelledBy: actor.id,
+					decidedBy: actor.id,
+					decidedAt: now,
+					sequence: sql`${bookings.sequence} + 1`
+				})
+				.where(eq(bookings.id, id));
+		}
+		await audit(tx, {
+			actorId: actor.id,
+			action: decision === 'approve' ? 'booking.approved' : 'booking.declined',
+			entity: 'booking',
+			entityId: id,
+			details: reason ? { reason } : undefined
+		});
+	});
+}
+
+export async function pendingBookings() {
+	return db
+		.select({
+			id: bookings.id,
+			startAt: bookings.startAt,
+			endAt: bookings.endAt,
+			purpose: bookings.purpose,
+			chemicalClasses: bookings.chemicalClasses,
+			volatileSolvents: bookings.volatileSolvents,
+			boxName: boxes.name,
+			userName: users.name,
+			createdAt: bookings.createdAt
+		})
+		.from(bookings)
+		.innerJoin(boxes, eq(boxes.id, bookings.boxId))
+		.innerJoin(users, eq(users.id, bookings.userId))
+		.where(eq(bookings.status, 'pending'))
+		.orderBy(asc(bookings.startAt));
+}
+
+export async function bookingsOf(userId: number, now = new Date()) {
+	const rows = await db
+		.select({
+			id: bookings.id,
+			boxId: bookings.boxId,
+			boxName: boxes.name,
+			gas: boxes.gas,
+			startAt: bookings.startAt,
+			endAt: bookings.endAt,
+			purpose: bookings.purpose,
+			status: bookings.status,
+			cancelReason: bookings.cancelReason,
+			cancelCause: bookings.cancelCause,
+			volatileSolvents: bookings.volatileSolvents
+		})
+		.from(bookings)
+		.innerJoin(boxes, eq(boxes.id, bookings.boxId))
+		.where(eq(bookings.userId, userId))
+		.orderBy(desc(bookings.startAt))
+		.limit(500);
+	const upcoming = rows.filter((b) => b.endAt > now && b.status !== 'cancelled').reverse();
+	const past = rows.filter((b) => !(b.endAt > now && b.status !== 'cancelled'));
+	return { upcoming, past };
+}
+
+export type CalendarEvent = {
+	id: string;
+	kind: 'booking' | 'pending' | 'purge' | 'outage';
+	boxId: number;
+	start: string;
+	end: string;
+	title: string;
+	mine: boolean;
+	bookingId?: number;
+	outageId?: number;
+	status?: BookingStatus;
+};
+
+/**
+ * Bookings (with their purge buffers) and outages overlapping [start, end). The range
+ * scan uses (box_id, start_at); the lower bound on start_at keeps it from reading the
+ * box's whole history.
+ */
+export async function events(
+	boxIds: number[] | 'all',
+	start: Date,
+	end: Date,
+	viewerId: number
+): Promise<CalendarEvent[]> {
+	const tz = config.facilityTz;
+	const boxFilter = boxIds === 'all' ? undefined : inArray(bookings.boxId, boxIds);
+	const outageFilter = boxIds === 'all' ? undefined : inArray(outages.boxId, boxIds);
+	const [bookingRows, outageRows] = await Promise.all([
+		db
+			.select({
+				id: bookings.id,
+				boxId: bookings.boxId,
+				userId: bookings.userId,
+				userName: users.name,
+				startAt: bookings.startAt,
+				endAt: bookings.endAt,
+				blockedUntil: bookings.blockedUntil,
+				status: bookings.status,
+				purpose: bookings.purpose
+			})
+			.from(bookings)
+			.innerJoin(users, eq(users.id, bookings.userId))
+			.where(
+				and(
+					boxFilter,
+					inArray(bookings.status, ['pending', 'confirmed', 'completed', 'no_show']),
+					lt(bookings.startAt, end),
+					gt(bookings.blockedUntil, start),
+					gte(bookings.startAt, new Date(start.getTime() - MAX_LOOKBACK_MS))
+				)
+			)
+			.orderBy(asc(bookings.startAt)),
+		db
+			.select()
+			.from(outages)
+			.where(and(outageFilter, lt(outages.startAt, end), gt(outages.endAt, start)))
+	]);
+	const list: CalendarEvent[] = [];
+	for (const b of bookingRows) {
+		const mine = b.userId === viewerId;
+		list.push({
+			id: `booking-${b.id}`,
+			kind: b.status === 'pending' ? 'pending' : 'booking',
+			boxId: b.boxId,
+			start: isoInZone(b.startAt, tz),
+			end: isoInZone(b.endAt, tz),
+			title: mine ? `You: ${b.purpose}` : b.userName,
+			mine,
+			bookingId: b.id,
+			status: b.status
+		});
+		if (b.blockedUntil > b.endAt) {
+			list.push({
+				id: `purge-${b.id}`,
+				kind: 'purge',
+				boxId: b.boxId,
+				start: isoInZone(b.endAt, tz),
+				end: isoInZone(b.blockedUntil, tz),
+				title: 'Purge',
+				mine,
+				bookingId: b.id
+			});
+		}
+	}
+	for (const o of outageRows) {
+		list.push({
+			id: `outage-${o.id}`,
+			kind: 'outage',
+			boxId: o.boxId,
+			start: isoInZone(o.startAt, tz),
+			end: isoInZone(o.endAt, tz),
+			title: `Out of service: ${o.reason}`,
+			mine: false,
+			outageId: o.id
+		});
+	}
+	return list;
+}

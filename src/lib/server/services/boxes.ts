@@ -1,0 +1,194 @@
+import { and, asc, desc, eq, gt, inArray, lte, sql } from 'drizzle-orm';
+import { boxCondition, type BoxCondition } from '$lib/domain/boxes';
+import type { BoxInput } from '$lib/validation/boxes';
+import { db, type Transaction } from '../db';
+import {
+	atmosphereReadings,
+	boxes,
+	boxPorts,
+	boxRequiredModules,
+	outages,
+	trainingModules,
+	type Box
+} from '../db/schema';
+import type { Actor } from './accounts';
+import { audit } from './audit';
+import { isDuplicateKey, notFound, ServiceError } from './errors';
+
+export type BoxSummary = {
+	id: number;
+	name: string;
+	room: string;
+	gas: Box['gas'];
+	volumeL: number;
+	condition: BoxCondition;
+	status: Box['status'];
+	atmosphereState: Box['atmosphereState'];
+	ports: { id: number; position: string; diameterMm: number }[];
+	requiredModules: { id: number; name: string }[];
+	latestReading: { at: Date; o2Ppm: number; h2oPpm: number } | null;
+	currentOutage: { id: number; endAt: Date; reason: string; kind: string } | null;
+};
+
+async function summarise(rows: Box[], now = new Date()): Promise<BoxSummary[]> {
+	if (!rows.length) return [];
+	const ids = rows.map((b) => b.id);
+	const [ports, required, current, latest] = await Promise.all([
+		db
+			.select()
+			.from(boxPorts)
+			.where(inArray(boxPorts.boxId, ids))
+			.orderBy(asc(boxPorts.sortOrder), asc(boxPorts.id)),
+		db
+			.select({
+				boxId: boxRequiredModules.boxId,
+				id: trainingModules.id,
+				name: trainingModules.name
+			})
+			.from(boxRequiredModules)
+			.innerJoin(trainingModules, eq(trainingModules.id, boxRequiredModules.moduleId))
+			.where(inArray(boxRequiredModules.boxId, ids))
+			.orderBy(asc(trainingModules.name)),
+		db
+			.select()
+			.from(outages)
+			.where(and(inArray(outages.boxId, ids), lte(outages.startAt, now), gt(outages.endAt, now))),
+		// The newest reading per box, through the (box_id, at) index.
+		db
+			.select({
+				boxId: atmosphereReadings.boxId,
+				at: atmosphereReadings.at,
+				o2Ppm: atmosphereReadings.o2Ppm,
+				h2oPpm: atmosphereReadings.h2oPpm
+			})
+			.from(atmosphereReadings)
+			.where(
+				sql`(${atmosphereReadings.boxId}, ${atmosphereReadings.at}) IN (SELECT box_id, MAX(at) FROM atmosphere_readings WHERE box_id IN (${sql.join(ids, sql`, `)}) GROUP BY box_id)`
+			)
+	]);
+	return rows.map((box) => {
+		const outage = current.find((o) => o.boxId === box.id) ?? null;
+		const reading = latest.find((r) => r.boxId === box.id) ?? null;
+		return {
+			id: box.id,
+			name: box.name,
+			room: box.room,
+			gas: box.gas,
+			volumeL: box.volumeL,
+			status: box.status,
+			atmosphereState: box.atmosphereState,
+			condition: boxCondition(box.status, box.atmosphereState, outage !== null),
+			ports: ports
+				.filter((p) => p.boxId === box.id)
+				.map((p) => ({ id: p.id, position: p.position, diameterMm: p.diameterMm })),
+			requiredModules: required
+				.filter((r) => r.boxId === box.id)
+				.map((r) => ({ id: r.id, name: r.name })),
+			latestReading: reading && { at: reading.at, o2Ppm: reading.o2Ppm, h2oPpm: reading.h2oPpm },
+			currentOutage: outage && {
+				id: outage.id,
+				endAt: outage.endAt,
+				reason: outage.reason,
+				kind: outage.kind
+			}
+		};
+	});
+}
+
+export async function listBoxes(): Promise<BoxSummary[]> {
+	return summarise(await db.select().from(boxes).orderBy(asc(boxes.name)));
+}
+
+export async function getBox(id: number): Promise<{ box: Box; summary: BoxSummary }> {
+	const [box] = await db.select().from(boxes).where(eq(boxes.id, id));
+	if (!box) throw notFound('The box');
+	const [summary] = await summarise([box]);
+	return { box, summary };
+}
+
+/** Outages and recent bookings for the box page's history section. */
+export async function boxOutages(boxId: number, limit = 20) {
+	return db
+		.select()
+		.from(outages)
+		.where(eq(outages.boxId, boxId))
+		.orderBy(desc(outages.startAt))
+		.limit(limit);
+}
+
+async function writeParts(tx: Transaction, boxId: number, input: BoxInput) {
+	await tx.delete(boxPorts).where(eq(boxPorts.boxId, boxId));
+	if (input.ports.length) {
+		await tx.insert(boxPorts).values(
+			input.ports.map((p, i) => ({
+				boxId,
+				position: p.position,
+				diameterMm: p.diameterMm,
+				sortOrder: i
+			}))
+		);
+	}
+	await tx.delete(boxRequiredModules).where(eq(boxRequiredModules.boxId, boxId));
+	if (input.requiredModuleIds.length) {
+		const known = await tx
+			.select({ id: trainingModules.id })
+			.from(trainingModules)
+			.where(inArray(trainingModules.id, input.requiredModuleIds));
+		if (known.length !== new Set(input.requiredModuleIds).size) {
+			const message = 'Choose training modules from the list.';
+			throw new ServiceError(400, message, { fields: { requiredModuleIds: message } });
+		}
+		await tx
+			.insert(boxRequiredModules)
+			.values([...new Set(input.requiredModuleIds)].map((moduleId) => ({ boxId, moduleId })));
+	}
+}
+
+function columns(input: BoxInput) {
+	const { ports, requiredModuleIds, ...rest } = input;
+	return rest;
+}
+
+function duplicateName(): ServiceError {
+	const message = 'Another box already has this name.';
+	return new ServiceError(409, message, { fields: { name: message } });
+}
+
+export async function createBox(actor: Actor, input: BoxInput): Promise<number> {
+	try {
+		return await db.transaction(async (tx) => {
+			const [created] = await tx.insert(boxes).values(columns(input)).$returningId();
+			await writeParts(tx, created.id, input);
+			await audit(tx, {
+				actorId: actor.id,
+				action: 'box.created',
+				entity: 'box',
+				entityId: created.id,
+				details: { name: input.name }
+			});
+			return created.id;
+		});
+	} catch (e) {
+		if (isDuplicateKey(e)) throw duplicateName();
+		throw e;
+	}
+}
+
+export async function updateBox(actor: Actor, id: number, input: BoxInput): Promise<void> {
+	try {
+		await db.transaction(async (tx) => {
+			const [existing] = await tx
+				.select({ id: boxes.id })
+				.from(boxes)
+				.where(eq(boxes.id, id))
+				.for('update');
+			if (!existing) throw notFound('The box');
+			await tx.update(boxes).set(columns(input)).where(eq(boxes.id, id));
+			await writeParts(tx, id, input);
+			await audit(tx, { actorId: actor.id, action: 'box.updated', entity: 'box', entityId: id });
+		});
+	} catch (e) {
+		if (isDuplicateKey(e)) throw duplicateName();
+		throw e;
+	}
+}

@@ -1,0 +1,64 @@
+import { z } from 'zod';
+import { chemicalClassKeys } from '$lib/domain/boxes';
+
+/** ISO 8601 with an offset (or Z), as the HTTP contract requires. */
+export const isoDateTime = (field: string) =>
+	z.iso
+		.datetime({
+			offset: true,
+			error: `${field} must be an ISO 8601 date-time with an offset, e.g. 2026-12-02T09:00:00+01:00.`
+		})
+		.transform((s) => new Date(s));
+
+export const bookingSchema = z
+	.object({
+		boxId: z.coerce
+			.number({ error: 'Choose a box.' })
+			.int('Choose a box.')
+			.positive('Choose a box.'),
+		start: isoDateTime('start'),
+		end: isoDateTime('end'),
+		purpose: z
+			.string({ error: 'Say what the booking is for.' })
+			.trim()
+			.min(1, 'Say what the booking is for.')
+			.max(200, 'Use at most 200 characters.'),
+		chemicalClasses: z
+			.array(
+				z.enum(chemicalClassKeys as [string, ...string[]], { error: 'Unknown chemical class.' })
+			)
+			.max(20)
+			.default([]),
+		volatileSolvents: z.boolean().default(false)
+	})
+	.refine((v) => !(v.start instanceof Date && v.end instanceof Date) || v.end > v.start, {
+		path: ['end'],
+		message: 'The end must be after the start.'
+	});
+
+export type BookingInput = z.output<typeof bookingSchema>;
+
+export const rangeSchema = z
+	.object({ start: isoDateTime('start'), end: isoDateTime('end') })
+	.refine((v) => !(v.start instanceof Date && v.end instanceof Date) || v.end > v.start, {
+		path: ['end'],
+		message: 'The end must be after the start.'
+	})
+	.refine(
+		(v) =>
+			!(v.start instanceof Date && v.end instanceof Date) ||
+			v.end.getTime() - v.start.getTime() <= 62 * 86_400_000,
+		{
+			path: ['end'],
+			message: 'Ask for at most 62 days at a time.'
+		}
+	);
+
+export const cancelSchema = z.object({
+	reason: z.string().trim().max(500, 'Use at most 500 characters.').optional()
+});
+
+export const declineSchema = z.object({
+	bookingId: z.coerce.number().int().positive(),
+	reason: z.string().trim().min(1, 'Say why the booking is declined.').max(500)
+});

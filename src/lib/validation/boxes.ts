@@ -1,0 +1,118 @@
+import { z } from 'zod';
+import { chemicalClassKeys, gases } from '$lib/domain/boxes';
+
+const minutes = (label: string, min: number, max: number) =>
+	z.coerce
+		.number({ error: `Enter ${label} in minutes.` })
+		.int(`Enter ${label} in whole minutes.`)
+		.min(min, `${label[0].toUpperCase()}${label.slice(1)} must be at least ${min} min.`)
+		.max(max, `${label[0].toUpperCase()}${label.slice(1)} must be at most ${max} min.`);
+
+const ppm = (label: string) =>
+	z.coerce
+		.number({ error: `Enter the ${label} in ppm.` })
+		.min(0, `The ${label} cannot be negative.`)
+		.max(100_000, `The ${label} is implausibly high.`);
+
+const rate = z.coerce
+	.number({ error: 'Enter an hourly rate.' })
+	.min(0, 'A rate cannot be below zero.')
+	.max(100_000, 'That rate is implausibly high.');
+
+export const portSchema = z.object({
+	position: z.string().trim().min(1, 'Name the port’s position.').max(40),
+	diameterMm: z.coerce
+		.number({ error: 'Enter the port diameter in mm.' })
+		.int('Enter the diameter in whole mm.')
+		.min(50, 'A port is at least 50 mm across.')
+		.max(400, 'A port is at most 400 mm across.')
+});
+
+export const boxSchema = z
+	.object({
+		name: z.string().trim().min(1, 'Name the box.').max(80, 'Use at most 80 characters.'),
+		room: z.string().trim().min(1, 'Say which room the box is in.').max(80),
+		gas: z.enum(gases, { error: 'Choose argon or nitrogen.' }),
+		volumeL: z.coerce
+			.number({ error: 'Enter the internal volume in litres.' })
+			.int('Enter whole litres.')
+			.min(50, 'A glove box holds at least 50 L.')
+			.max(20_000, 'That volume is implausibly large.'),
+		description: z.string().trim().max(2000).optional().default(''),
+		status: z.enum(['in_service', 'out_of_service']).default('in_service'),
+		o2WarnPpm: ppm('O₂ warn level'),
+		o2AlarmPpm: ppm('O₂ alarm level'),
+		h2oWarnPpm: ppm('H₂O warn level'),
+		h2oAlarmPpm: ppm('H₂O alarm level'),
+		rateInternal: rate,
+		rateExternal: rate,
+		slotStepMin: minutes('the slot step', 5, 240),
+		minLengthMin: minutes('the shortest booking', 5, 1440),
+		maxLengthMin: minutes('the longest booking', 5, 10080),
+		horizonDays: z.coerce
+			.number()
+			.int()
+			.min(1, 'At least 1 day ahead.')
+			.max(365, 'At most a year ahead.'),
+		weeklyQuotaMin: minutes('the weekly quota', 0, 10080),
+		purgeMin: minutes('the purge time', 0, 720),
+		needsApproval: z.coerce.boolean().default(false),
+		excludedClasses: z.array(z.enum(chemicalClassKeys as [string, ...string[]])).default([]),
+		requiredModuleIds: z.array(z.coerce.number().int().positive()).default([]),
+		ports: z.array(portSchema).max(12, 'At most 12 ports.').default([])
+	})
+	.superRefine((v, ctx) => {
+		if (v.o2AlarmPpm < v.o2WarnPpm)
+			ctx.addIssue({
+				code: 'custom',
+				path: ['o2AlarmPpm'],
+				message: 'The alarm level must be at or above the warn level.'
+			});
+		if (v.h2oAlarmPpm < v.h2oWarnPpm)
+			ctx.addIssue({
+				code: 'custom',
+				path: ['h2oAlarmPpm'],
+				message: 'The alarm level must be at or above the warn level.'
+			});
+		if (v.maxLengthMin < v.minLengthMin)
+			ctx.addIssue({
+				code: 'custom',
+				path: ['maxLengthMin'],
+				message: 'The longest booking must be at least the shortest.'
+			});
+		if (v.minLengthMin % v.slotStepMin !== 0)
+			ctx.addIssue({
+				code: 'custom',
+				path: ['minLengthMin'],
+				message: 'Use a multiple of the slot step.'
+			});
+		if (v.maxLengthMin % v.slotStepMin !== 0)
+			ctx.addIssue({
+				code: 'custom',
+				path: ['maxLengthMin'],
+				message: 'Use a multiple of the slot step.'
+			});
+	});
+
+export type BoxInput = z.output<typeof boxSchema>;
+
+/** Reads the box form (repeated port fields, checkboxes) into the schema's shape. */
+export function boxFormToInput(form: FormData): unknown {
+	const positions = form.getAll('portPosition').map(String);
+	const diameters = form.getAll('portDiameterMm').map(String);
+	const fields = Object.fromEntries(
+		[...form.entries()].filter(
+			([k]) =>
+				!['portPosition', 'portDiameterMm', 'excludedClasses', 'requiredModuleIds'].includes(k)
+		)
+	);
+	return {
+		...fields,
+		needsApproval: form.get('needsApproval') === 'on',
+		excludedClasses: form.getAll('excludedClasses').map(String),
+		requiredModuleIds: form.getAll('requiredModuleIds').map(String),
+		ports: positions
+			.map((position, i) => ({ position, diameterMm: diameters[i] ?? '' }))
+			.filter((p) => p.position.trim() !== '' || p.diameterMm.trim() !== '')
+	};
+}

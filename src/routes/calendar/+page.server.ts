@@ -1,0 +1,20 @@
+import { requireUser } from '$lib/server/guard';
+import { listBoxes } from '$lib/server/services/boxes';
+import { currentCertifications } from '$lib/server/services/training';
+import type { PageServerLoad } from './$types';
+
+export const load: PageServerLoad = async (event) => {
+	const user = requireUser(event);
+	const [boxes, certs] = await Promise.all([listBoxes(), currentCertifications(user.id)]);
+	const held = new Set(certs.map((c) => c.moduleId));
+	return {
+		boxes: boxes.map((b) => ({
+			id: b.id,
+			name: b.name,
+			gas: b.gas,
+			condition: b.condition,
+			// A hint for which box to show first; the server still checks every booking.
+			bookable: b.requiredModules.every((m) => held.has(m.id))
+		}))
+	};
+};

@@ -1,0 +1,41 @@
+import { error, redirect } from '@sveltejs/kit';
+import { invalidForm, refusedForm } from '$lib/server/forms';
+import { requireRole } from '$lib/server/guard';
+import { idParam } from '$lib/server/params';
+import { getBox, updateBox } from '$lib/server/services/boxes';
+import { attempt } from '$lib/server/services/errors';
+import { listModules } from '$lib/server/services/training';
+import { boxFormToInput, boxSchema } from '$lib/validation/boxes';
+import type { Actions, PageServerLoad } from './$types';
+
+export const load: PageServerLoad = async (event) => {
+	requireRole(event, 'manager');
+	const id = idParam(event.params.id, 'The box');
+	const found = await attempt(() => getBox(id));
+	if (!found.ok) error(404, { message: 'That box was not found.', code: 'not_found' });
+	const { box, summary } = found.value;
+	const modules = await listModules();
+	return {
+		id,
+		name: box.name,
+		modules: modules.map((m) => ({ id: m.id, name: m.name })),
+		values: {
+			...box,
+			ports: summary.ports,
+			requiredModuleIds: summary.requiredModules.map((m) => m.id)
+		}
+	};
+};
+
+export const actions: Actions = {
+	default: async (event) => {
+		const actor = requireRole(event, 'manager');
+		const id = idParam(event.params.id, 'The box');
+		const raw = boxFormToInput(await event.request.formData());
+		const parsed = boxSchema.safeParse(raw);
+		if (!parsed.success) return invalidForm(raw, parsed.error);
+		const result = await attempt(() => updateBox(actor, id, parsed.data));
+		if (!result.ok) return refusedForm(raw, result.error);
+		redirect(303, `/boxes/${id}`);
+	}
+};

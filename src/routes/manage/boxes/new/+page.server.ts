@@ -1,0 +1,45 @@
+import { redirect } from '@sveltejs/kit';
+import { invalidForm, refusedForm } from '$lib/server/forms';
+import { requireRole } from '$lib/server/guard';
+import { createBox } from '$lib/server/services/boxes';
+import { attempt } from '$lib/server/services/errors';
+import { listModules } from '$lib/server/services/training';
+import { boxFormToInput, boxSchema } from '$lib/validation/boxes';
+import type { Actions, PageServerLoad } from './$types';
+
+// The defaults of DESIGN.md for a new box.
+const defaults = {
+	gas: 'Ar',
+	status: 'in_service',
+	slotStepMin: 15,
+	minLengthMin: 30,
+	maxLengthMin: 240,
+	horizonDays: 28,
+	weeklyQuotaMin: 720,
+	purgeMin: 30,
+	needsApproval: false,
+	o2WarnPpm: 1,
+	o2AlarmPpm: 10,
+	h2oWarnPpm: 1,
+	h2oAlarmPpm: 10,
+	rateInternal: 0,
+	rateExternal: 0
+};
+
+export const load: PageServerLoad = async (event) => {
+	requireRole(event, 'manager');
+	const modules = await listModules();
+	return { modules: modules.map((m) => ({ id: m.id, name: m.name })), defaults };
+};
+
+export const actions: Actions = {
+	default: async (event) => {
+		const actor = requireRole(event, 'manager');
+		const raw = boxFormToInput(await event.request.formData());
+		const parsed = boxSchema.safeParse(raw);
+		if (!parsed.success) return invalidForm(raw, parsed.error);
+		const result = await attempt(() => createBox(actor, parsed.data));
+		if (!result.ok) return refusedForm(raw, result.error);
+		redirect(303, `/boxes/${result.value}`);
+	}
+};
