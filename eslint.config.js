@@ -17,7 +17,10 @@ export default ts.config(
 			'no-undef': 'off',
 			// Boxwright is served at the site root (no paths.base), so plain hrefs are right.
 			'svelte/no-navigation-without-resolve': 'off',
-			'@typescript-eslint/no-unused-vars': ['error', { argsIgnorePattern: '^_', ignoreRestSiblings: true }]
+			'@typescript-eslint/no-unused-vars': [
+				'error',
+				{ argsIgnorePattern: '^_', ignoreRestSiblings: true }
+			]
 		}
 	},
 	{
