@@ -88,19 +88,35 @@ function hours(minutes: number): string {
 	return `${Math.floor(minutes / 60)} h ${minutes % 60} min`;
 }
 
-/** Minutes of [start, end) falling in each ISO week of the zone, keyed "2026-W49". */
-export function minutesPerIsoWeek(start: Date, end: Date, tz: string): Map<string, number> {
-	const weeks = new Map<string, number>();
-	let cursor = local(start, tz);
+/** The ISO weeks of the zone that [start, end) touches, as UTC windows keyed "2026-W49". */
+export function isoWeeks(start: Date, end: Date, tz: string) {
+	const weeks: { key: string; from: Date; to: Date }[] = [];
+	let cursor = local(start, tz).startOf('week');
 	const stop = local(end, tz);
 	while (cursor < stop) {
-		const weekEnd = cursor.startOf('week').plus({ weeks: 1 });
-		const sliceEnd = weekEnd < stop ? weekEnd : stop;
-		const key = `${cursor.weekYear}-W${String(cursor.weekNumber).padStart(2, '0')}`;
-		weeks.set(key, (weeks.get(key) ?? 0) + sliceEnd.diff(cursor, 'minutes').minutes);
-		cursor = sliceEnd;
+		const next = cursor.plus({ weeks: 1 });
+		weeks.push({
+			key: `${cursor.weekYear}-W${String(cursor.weekNumber).padStart(2, '0')}`,
+			from: cursor.toJSDate(),
+			to: next.toJSDate()
+		});
+		cursor = next;
 	}
 	return weeks;
+}
+
+/** Minutes of [start, end) inside [from, to), by plain arithmetic (this runs per booking). */
+function minutesWithin(start: Date, end: Date, from: Date, to: Date): number {
+	const a = Math.max(start.getTime(), from.getTime());
+	const b = Math.min(end.getTime(), to.getTime());
+	return b > a ? (b - a) / 60_000 : 0;
+}
+
+/** Minutes of [start, end) falling in each ISO week of the zone. */
+export function minutesPerIsoWeek(start: Date, end: Date, tz: string): Map<string, number> {
+	return new Map(
+		isoWeeks(start, end, tz).map((w) => [w.key, minutesWithin(start, end, w.from, w.to)])
+	);
 }
 
 /** Is the instant on the box's slot grid, in wall-clock minutes of the facility zone? */
@@ -167,19 +183,15 @@ export function checkBooking(req: BookingRequest, ctx: RuleContext): RuleResult 
 		);
 
 	// Weekly quota, per ISO week of the facility's zone.
-	const used = new Map<string, number>();
-	for (const b of ctx.userBookings) {
-		for (const [week, m] of minutesPerIsoWeek(b.startAt, b.endAt, tz)) {
-			used.set(week, (used.get(week) ?? 0) + m);
-		}
-	}
-	for (const [week, m] of minutesPerIsoWeek(req.start, req.end, tz)) {
-		const total = (used.get(week) ?? 0) + m;
+	for (const week of isoWeeks(req.start, req.end, tz)) {
+		let used = 0;
+		for (const b of ctx.userBookings) used += minutesWithin(b.startAt, b.endAt, week.from, week.to);
+		const total = used + minutesWithin(req.start, req.end, week.from, week.to);
 		if (total > box.weeklyQuotaMin) {
-			const left = Math.max(0, box.weeklyQuotaMin - (used.get(week) ?? 0));
+			const left = Math.max(0, box.weeklyQuotaMin - used);
 			add(
 				'quota_exceeded',
-				`This would take you to ${hours(total)} on this box in week ${week.slice(-2)}; the limit is ${hours(box.weeklyQuotaMin)} a week (${hours(left)} left).`
+				`This would take you to ${hours(total)} on this box in week ${week.key.slice(-2)}; the limit is ${hours(box.weeklyQuotaMin)} a week (${hours(left)} left).`
 			);
 		}
 	}

@@ -1,7 +1,7 @@
-import { and, asc, desc, eq, gt, gte, inArray, lt, ne, sql } from 'drizzle-orm';
+import { and, asc, desc, eq, gt, gte, inArray, lt, sql } from 'drizzle-orm';
 import { DateTime } from 'luxon';
 import { checkBooking, refusalStatus, type Reason } from '$lib/domain/booking-rules';
-import { holdingStatuses, type BookingStatus } from '$lib/domain/bookings';
+import type { BookingStatus } from '$lib/domain/bookings';
 import { hasRole } from '$lib/domain/roles';
 import { isoInZone } from '$lib/domain/time';
 import type { BookingInput } from '$lib/validation/bookings';
@@ -15,7 +15,8 @@ import {
 	outages,
 	trainingModules,
 	users,
-	type Booking
+	type Booking,
+	type Box
 } from '../db/schema';
 import type { Actor } from './accounts';
 import { audit } from './audit';
@@ -58,7 +59,23 @@ export type PublicBooking = {
 	cancelCause: string | null;
 };
 
-export function toPublic(b: Booking, tz = config.facilityTz): PublicBooking {
+type BookingView = Pick<
+	Booking,
+	| 'id'
+	| 'boxId'
+	| 'userId'
+	| 'startAt'
+	| 'endAt'
+	| 'blockedUntil'
+	| 'purpose'
+	| 'chemicalClasses'
+	| 'volatileSolvents'
+	| 'status'
+	| 'cancelReason'
+	| 'cancelCause'
+>;
+
+export function toPublic(b: BookingView, tz = config.facilityTz): PublicBooking {
 	return {
 		id: b.id,
 		boxId: b.boxId,
@@ -86,86 +103,118 @@ function weeksWindow(start: Date, end: Date) {
 
 /** The longest booking (7 d) plus purge (12 h) fits in this; bounds how far back an overlapping hold starts. */
 const MAX_LOOKBACK_MS = 8 * 86_400_000;
+/** The longest purge a box may set (12 h, see the box form's limits). */
+const MAX_PURGE_MS = 12 * 3_600_000;
 
-/** Reads everything the rules need, under the box row's lock, and checks the request. */
-async function evaluate(
-	tx: Transaction,
-	userId: number,
-	input: BookingInput,
-	now: Date,
-	ignoreBookingId?: number
-) {
-	const [box] = await tx.select().from(boxes).where(eq(boxes.id, input.boxId)).for('update');
-	if (!box)
-		throw new ServiceError(404, 'The box was not found.', { fields: { boxId: 'No such box.' } });
-
-	const purgeEnd = new Date(input.end.getTime() + box.purgeMin * 60_000);
-	const week = weeksWindow(input.start, input.end);
-	const notThis = ignoreBookingId ? ne(bookings.id, ignoreBookingId) : undefined;
-	const [requiredModules, certs, others, outageRows, userRows] = await Promise.all([
-		tx
+/** What does not race with other bookings: read before the box lock is taken. */
+async function readGates(userId: number, boxId: number) {
+	const [requiredModules, certs] = await Promise.all([
+		db
 			.select({ id: trainingModules.id, name: trainingModules.name })
 			.from(boxRequiredModules)
 			.innerJoin(trainingModules, eq(trainingModules.id, boxRequiredModules.moduleId))
-			.where(eq(boxRequiredModules.boxId, box.id)),
-		tx
+			.where(eq(boxRequiredModules.boxId, boxId)),
+		db
 			.select({
 				moduleId: certifications.moduleId,
 				grantedAt: certifications.grantedAt,
 				expiresAt: certifications.expiresAt
 			})
 			.from(certifications)
-			.where(and(eq(certifications.userId, userId), sql`${certifications.revokedAt} IS NULL`)),
-		// Held bookings whose time or purge reaches into ours, or that start inside our purge.
-		tx
-			.select({
-				id: bookings.id,
-				startAt: bookings.startAt,
-				endAt: bookings.endAt,
-				blockedUntil: bookings.blockedUntil,
-				status: bookings.status
-			})
-			.from(bookings)
-			.where(
-				and(
-					eq(bookings.boxId, box.id),
-					inArray(bookings.status, ['pending', 'confirmed']),
-					lt(bookings.startAt, purgeEnd),
-					gt(bookings.blockedUntil, input.start),
-					gte(bookings.startAt, new Date(input.start.getTime() - MAX_LOOKBACK_MS)),
-					notThis
-				)
-			),
-		tx
-			.select({
-				id: outages.id,
-				startAt: outages.startAt,
-				endAt: outages.endAt,
-				reason: outages.reason
-			})
-			.from(outages)
-			.where(
-				and(
-					eq(outages.boxId, box.id),
-					lt(outages.startAt, purgeEnd),
-					gt(outages.endAt, input.start)
-				)
-			),
-		tx
-			.select({ startAt: bookings.startAt, endAt: bookings.endAt })
-			.from(bookings)
-			.where(
-				and(
-					eq(bookings.boxId, box.id),
-					eq(bookings.userId, userId),
-					inArray(bookings.status, holdingStatuses),
-					lt(bookings.startAt, week.to),
-					gt(bookings.endAt, week.from),
-					notThis
-				)
-			)
+			.where(and(eq(certifications.userId, userId), sql`${certifications.revokedAt} IS NULL`))
 	]);
+	return { requiredModules, certs };
+}
 
+type NearRow = {
+	src: 'other' | 'mine' | 'outage';
+	id: number;
+	start_at: string;
+	end_at: string;
+	blocked_until: string;
+	status: string;
+};
+
+type RawBox = {
+	id: number;
+	status: Box['status'];
+	atmosphere_state: Box['atmosphereState'];
+	slot_step_min: number;
+	min_length_min: number;
+	max_length_min: number;
+	horizon_days: number;
+	weekly_quota_min: number;
+	purge_min: number;
+	needs_approval: number;
+	excluded_classes: string | string[];
+};
+const BOX_RULE_COLUMNS =
+	'id, status, atmosphere_state, slot_step_min, min_length_min, max_length_min, horizon_days, weekly_quota_min, purge_min, needs_approval, excluded_classes';
+
+function ruleBox(r: RawBox) {
+	return {
+		id: r.id,
+		status: r.status,
+		atmosphereState: r.atmosphere_state,
+		slotStepMin: r.slot_step_min,
+		minLengthMin: r.min_length_min,
+		maxLengthMin: r.max_length_min,
+		horizonDays: r.horizon_days,
+		weeklyQuotaMin: r.weekly_quota_min,
+		purgeMin: r.purge_min,
+		needsApproval: Boolean(r.needs_approval),
+		// mysql2 parses the column itself when the server flags it as JSON; MariaDB may not.
+		excludedClasses:
+			typeof r.excluded_classes === 'string'
+				? (JSON.parse(r.excluded_classes) as string[])
+				: r.excluded_classes
+	};
+}
+
+/** Raw queries through drizzle get DATETIME as "YYYY-MM-DD hh:mm:ss" text, in UTC. */
+const utc = (value: string) => new Date(`${value.replace(' ', 'T')}Z`);
+
+/**
+ * Locks the box row, then reads in one round trip what the lock protects: held bookings
+ * whose time or purge reaches into ours (or that start inside our purge), the user's own
+ * bookings in the ISO weeks touched (quota), and outages. Each branch is a range scan on
+ * (box_id, start_at) with a lower bound, so the box's history is never read whole.
+ */
+async function evaluate(
+	tx: Transaction,
+	userId: number,
+	input: BookingInput,
+	now: Date,
+	gates: Awaited<ReturnType<typeof readGates>>,
+	ignoreBookingId = 0
+) {
+	// The longest purge and the weeks touched bound the reads; the box's own purge time is
+	// applied below, once its row is in hand.
+	const purgeBound = new Date(input.end.getTime() + MAX_PURGE_MS);
+	const week = weeksWindow(input.start, input.end);
+	const from = new Date(input.start.getTime() - MAX_LOOKBACK_MS);
+	const weekFrom = new Date(week.from.getTime() - MAX_LOOKBACK_MS);
+	// One round trip: the lock, then (in the same transaction, after it) what it protects.
+	const [[lockedRows, rows]] = (await tx.execute(sql`
+		SELECT ${sql.raw(BOX_RULE_COLUMNS)} FROM boxes WHERE id = ${input.boxId} FOR UPDATE;
+		SELECT 'other' AS src, id, start_at, end_at, blocked_until, status FROM bookings
+		WHERE box_id = ${input.boxId} AND status IN ('pending', 'confirmed') AND id <> ${ignoreBookingId}
+			AND start_at < ${purgeBound} AND blocked_until > ${input.start} AND start_at >= ${from}
+		UNION ALL
+		SELECT 'mine', id, start_at, end_at, blocked_until, status FROM bookings
+		WHERE box_id = ${input.boxId} AND user_id = ${userId} AND id <> ${ignoreBookingId}
+			AND status IN ('pending', 'confirmed', 'completed', 'no_show')
+			AND start_at < ${week.to} AND end_at > ${week.from} AND start_at >= ${weekFrom}
+		UNION ALL
+		SELECT 'outage', id, start_at, end_at, end_at, reason FROM outages
+		WHERE box_id = ${input.boxId} AND start_at < ${purgeBound} AND end_at > ${input.start}
+	`)) as unknown as [[RawBox[], NearRow[]]];
+	if (!lockedRows.length)
+		throw new ServiceError(404, 'The box was not found.', { fields: { boxId: 'No such box.' } });
+	const box = ruleBox(lockedRows[0]);
+	const purgeEnd = new Date(input.end.getTime() + box.purgeMin * 60_000);
+
+	const held = (r: NearRow) => ({ startAt: utc(r.start_at), endAt: utc(r.end_at) });
 	const result = checkBooking(
 		{
 			start: input.start,
@@ -176,11 +225,21 @@ async function evaluate(
 		{
 			now,
 			tz: config.facilityTz,
-			box: { ...box, requiredModules },
-			certifications: certs,
-			others,
-			outages: outageRows,
-			userBookings: userRows
+			box: { ...box, requiredModules: gates.requiredModules },
+			// Read up to the longest purge; keep what reaches into this box's own purge.
+			certifications: gates.certs,
+			others: rows
+				.filter((r) => r.src === 'other' && utc(r.start_at) < purgeEnd)
+				.map((r) => ({
+					id: r.id,
+					...held(r),
+					blockedUntil: utc(r.blocked_until),
+					status: r.status as BookingStatus
+				})),
+			outages: rows
+				.filter((r) => r.src === 'outage' && utc(r.start_at) < purgeEnd)
+				.map((r) => ({ id: r.id, ...held(r), reason: r.status })),
+			userBookings: rows.filter((r) => r.src === 'mine').map(held)
 		}
 	);
 	return { box, result, blockedUntil: input.volatileSolvents ? purgeEnd : input.end };
@@ -220,27 +279,25 @@ function refusal(reasons: Reason[], status: 409 | 422): ServiceError {
  * never both succeed.
  */
 export async function createBooking(actor: Actor, input: BookingInput, now = new Date()) {
+	const gates = await readGates(actor.id, input.boxId);
 	return withRetry(() =>
 		db.transaction(async (tx) => {
-			const { box, result, blockedUntil } = await evaluate(tx, actor.id, input, now);
+			const { box, result, blockedUntil } = await evaluate(tx, actor.id, input, now, gates);
 			const status = refusalStatus(result);
 			if (status) throw refusal(result.reasons, status);
 
-			const bookingStatus: BookingStatus = box.needsApproval ? 'pending' : 'confirmed';
-			const [created] = await tx
-				.insert(bookings)
-				.values({
-					boxId: box.id,
-					userId: actor.id,
-					startAt: input.start,
-					endAt: input.end,
-					blockedUntil,
-					purpose: input.purpose,
-					chemicalClasses: input.chemicalClasses,
-					volatileSolvents: input.volatileSolvents,
-					status: bookingStatus
-				})
-				.$returningId();
+			const values = {
+				boxId: box.id,
+				userId: actor.id,
+				startAt: input.start,
+				endAt: input.end,
+				blockedUntil,
+				purpose: input.purpose,
+				chemicalClasses: input.chemicalClasses,
+				volatileSolvents: input.volatileSolvents,
+				status: (box.needsApproval ? 'pending' : 'confirmed') as BookingStatus
+			};
+			const [created] = await tx.insert(bookings).values(values).$returningId();
 			await audit(tx, {
 				actorId: actor.id,
 				action: 'booking.created',
@@ -250,19 +307,19 @@ export async function createBooking(actor: Actor, input: BookingInput, now = new
 					boxId: box.id,
 					start: input.start.toISOString(),
 					end: input.end.toISOString(),
-					status: bookingStatus
+					status: values.status
 				}
 			});
-			const [row] = await tx.select().from(bookings).where(eq(bookings.id, created.id));
-			return row;
+			return { id: created.id, ...values, cancelReason: null, cancelCause: null };
 		})
 	);
 }
 
 /** Checks a request without saving it (the form's early answer). */
 export async function previewBooking(actor: Actor, input: BookingInput, now = new Date()) {
+	const gates = await readGates(actor.id, input.boxId);
 	return db.transaction(async (tx) => {
-		const { result } = await evaluate(tx, actor.id, input, now);
+		const { result } = await evaluate(tx, actor.id, input, now, gates);
 		return { status: refusalStatus(result), reasons: reasonsForClient(result.reasons) };
 	});
 }

@@ -192,3 +192,8 @@ export async function updateBox(actor: Actor, id: number, input: BoxInput): Prom
 		throw e;
 	}
 }
+
+export async function boxExists(id: number): Promise<boolean> {
+	const [row] = await db.select({ id: boxes.id }).from(boxes).where(eq(boxes.id, id));
+	return Boolean(row);
+}

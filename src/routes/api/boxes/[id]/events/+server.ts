@@ -3,8 +3,7 @@ import { requireUser } from '$lib/server/guard';
 import { fail, invalidInput } from '$lib/server/http';
 import { idParam } from '$lib/server/params';
 import { events } from '$lib/server/services/bookings';
-import { getBox } from '$lib/server/services/boxes';
-import { attempt } from '$lib/server/services/errors';
+import { boxExists } from '$lib/server/services/boxes';
 import { rangeSchema } from '$lib/validation/bookings';
 import { fieldErrors } from '$lib/validation/fields';
 import type { RequestHandler } from './$types';
@@ -15,7 +14,6 @@ export const GET: RequestHandler = async (event) => {
 	const range = rangeSchema.safeParse(Object.fromEntries(event.url.searchParams));
 	if (!range.success)
 		invalidInput(fieldErrors(range.error), 'Give start and end as ISO 8601 date-times.');
-	const box = await attempt(() => getBox(boxId));
-	if (!box.ok) fail(404, 'The box was not found.');
+	if (!(await boxExists(boxId))) fail(404, 'The box was not found.');
 	return json({ events: await events([boxId], range.data.start, range.data.end, user.id) });
 };
