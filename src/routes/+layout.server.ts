@@ -1,5 +1,6 @@
 import { config } from '$lib/server/config';
 import { countPendingFor, groupsLedBy } from '$lib/server/services/accounts';
+import { pendingBookings } from '$lib/server/services/bookings';
 import type { LayoutServerLoad } from './$types';
 
 export const load: LayoutServerLoad = async ({ locals }) => {
@@ -11,6 +12,8 @@ export const load: LayoutServerLoad = async ({ locals }) => {
 	return {
 		tz: config.facilityTz,
 		user: { id: user.id, name: user.name, email: user.email, role: user.role, isPi },
-		pendingApprovals: canApprove ? await countPendingFor(user) : 0
+		pendingApprovals: canApprove ? await countPendingFor(user) : 0,
+		pendingBookings:
+			user.role === 'manager' || user.role === 'admin' ? (await pendingBookings()).length : 0
 	};
 };
