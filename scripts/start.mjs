@@ -8,7 +8,8 @@ import {
 	log,
 	migrate,
 	root,
-	seed
+	seed,
+	startMailSink
 } from './lib/setup.mjs';
 
 loadEnvFile();
@@ -17,6 +18,7 @@ const db = await ensureDatabase({ database: process.env.DB_NAME ?? 'boxwright' }
 migrate(db.url);
 seed(db.url, { SEED_ONLY_WHEN_EMPTY: '1' });
 ensureBuild();
+const sink = await startMailSink(Number(process.env.SMTP_PORT ?? 2525));
 
 const port = process.env.PORT ?? '3000';
 const server = spawn('node', ['build'], {
@@ -24,6 +26,7 @@ const server = spawn('node', ['build'], {
 	stdio: 'inherit',
 	env: {
 		...process.env,
+		...sink.env,
 		DATABASE_URL: db.url,
 		PORT: port,
 		ORIGIN: process.env.ORIGIN ?? `http://localhost:${port}`
@@ -39,6 +42,7 @@ async function stop(code) {
 		server.kill('SIGTERM');
 		await new Promise((done) => server.once('exit', done));
 	}
+	await sink.stop();
 	await db.stop();
 	process.exit(code);
 }

@@ -15,6 +15,7 @@ import {
 	root,
 	run,
 	seed,
+	startMailSink,
 	waitForHttp
 } from './lib/setup.mjs';
 
@@ -33,10 +34,16 @@ const failures = [];
 if (run('npm', ['run', '-s', 'check']) !== 0) failures.push('svelte-check');
 ensureBuild();
 
+rmSync(join(dataDir(), 'test-mail'), { recursive: true, force: true });
+const sink = await startMailSink(Number(process.env.TEST_SMTP_PORT ?? 2526), 'test-mail');
 const port = process.env.TEST_PORT ?? '3100';
 const baseUrl = `http://127.0.0.1:${port}`;
 const env = {
 	...process.env,
+	...sink.env,
+	// Quick retries, so a test of a mail outage finishes in seconds.
+	OUTBOX_BACKOFF_MS: '200',
+	OUTBOX_POLL_MS: '200',
 	DATABASE_URL: db.url,
 	PORT: port,
 	ORIGIN: baseUrl,
@@ -90,6 +97,7 @@ try {
 } finally {
 	server.kill('SIGTERM');
 	await new Promise((done) => (server.exitCode !== null ? done() : server.once('exit', done)));
+	await sink.stop();
 	await db.stop();
 }
 process.exit(code);

@@ -4,6 +4,7 @@ import { building } from '$app/environment';
 import { readSession } from '$lib/server/auth';
 import { pool } from '$lib/server/db';
 import { shapeApiError } from '$lib/server/http';
+import { startWorker, stopWorker } from '$lib/server/mail/worker';
 
 const isApi = (path: string) => path.startsWith('/api/') || path.startsWith('/ical/');
 
@@ -34,5 +35,10 @@ export const handleError: HandleServerError = ({ error, event, status, message }
 };
 
 if (!building) {
-	process.on('sveltekit:shutdown', () => void pool.end());
+	// Every app process drains the outbox; OUTBOX_WORKER=off leaves it to others.
+	if (process.env.OUTBOX_WORKER !== 'off') startWorker();
+	process.on('sveltekit:shutdown', () => {
+		stopWorker();
+		void pool.end();
+	});
 }

@@ -285,3 +285,32 @@ export async function waitForHttp(url, seconds, child) {
 	}
 	fail(`${url} did not answer within ${seconds} s`);
 }
+
+/**
+ * Starts the local SMTP sink (scripts/mail-sink.mjs) unless SMTP_URL points at a real
+ * server. Returns the settings the app needs and a stop function.
+ */
+export async function startMailSink(port, folder = 'mail') {
+	if (process.env.SMTP_URL) return { env: {}, stop: async () => {} };
+	const dir = join(dataDir(), folder);
+	const child = spawn('node', ['scripts/mail-sink.mjs'], {
+		cwd: root,
+		stdio: ['ignore', 'pipe', 'inherit'],
+		env: { ...process.env, MAIL_SINK_DIR: dir, SMTP_PORT: String(port) }
+	});
+	await new Promise((done, reject) => {
+		child.stdout.on('data', (chunk) => String(chunk).includes('listening') && done());
+		child.once('exit', (code) =>
+			reject(new Error(`the mail sink exited with ${code} (is port ${port} taken? set SMTP_PORT)`))
+		);
+	});
+	log(`mail sink on 127.0.0.1:${port}, messages in ${dir}`);
+	return {
+		env: { SMTP_URL: `smtp://127.0.0.1:${port}`, MAIL_SINK_DIR: dir },
+		stop: async () => {
+			if (child.exitCode !== null) return;
+			child.kill('SIGTERM');
+			await new Promise((done) => child.once('exit', done));
+		}
+	};
+}

@@ -1,6 +1,7 @@
 import { config } from '$lib/server/config';
 import { countPendingFor, groupsLedBy } from '$lib/server/services/accounts';
 import { pendingBookings } from '$lib/server/services/bookings';
+import { unreadCount } from '$lib/server/services/notifications';
 import type { LayoutServerLoad } from './$types';
 
 export const load: LayoutServerLoad = async ({ locals }) => {
@@ -12,6 +13,7 @@ export const load: LayoutServerLoad = async ({ locals }) => {
 	return {
 		tz: config.facilityTz,
 		user: { id: user.id, name: user.name, email: user.email, role: user.role, isPi },
+		unread: await unreadCount(user.id),
 		pendingApprovals: canApprove ? await countPendingFor(user) : 0,
 		pendingBookings:
 			user.role === 'manager' || user.role === 'admin' ? (await pendingBookings()).length : 0

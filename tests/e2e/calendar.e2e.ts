@@ -5,6 +5,10 @@ test('a member selects a slot on the week view and sees it booked', async ({ pag
 	await signIn(page, 'member@example.org');
 	await page.goto('/calendar?view=week');
 	await expect(page.getByRole('heading', { name: 'Calendar' })).toBeVisible();
+	await page
+		.getByRole('combobox', { name: 'Box', exact: true })
+		.first()
+		.selectOption({ label: 'Kestrel' });
 	const purpose = `Ligand weighing ${Date.now().toString(36)}`;
 
 	// Next week's Wednesday, early morning: the demo never books before 09:00.
@@ -25,6 +29,10 @@ test('a member selects a slot on the week view and sees it booked', async ({ pag
 test('a newcomer tries to book and sees why not', async ({ page }) => {
 	await signIn(page, 'newcomer@example.org');
 	await page.goto('/calendar?view=week');
+	await page
+		.getByRole('combobox', { name: 'Box', exact: true })
+		.first()
+		.selectOption({ label: 'Heron' });
 	await page.getByRole('button', { name: 'Next week' }).click();
 	await dragSlot(page, 'thu', 6, 7);
 	await page.getByLabel('Purpose').fill('First go');

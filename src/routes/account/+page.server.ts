@@ -1,7 +1,12 @@
 import { fail } from '@sveltejs/kit';
 import { endOtherSessions } from '$lib/server/auth';
 import { requireUser } from '$lib/server/guard';
-import { changePassword, profile } from '$lib/server/services/accounts';
+import {
+	changePassword,
+	emailPreferences,
+	profile,
+	setEmailPreferences
+} from '$lib/server/services/accounts';
 import { attempt } from '$lib/server/services/errors';
 import { changePasswordSchema } from '$lib/validation/account';
 import { fieldErrors } from '$lib/validation/fields';
@@ -9,13 +14,20 @@ import type { Actions, PageServerLoad } from './$types';
 
 export const load: PageServerLoad = async (event) => {
 	const user = requireUser(event);
-	const me = await profile(user.id);
+	const [me, prefs] = await Promise.all([profile(user.id), emailPreferences(user.id)]);
 	return {
-		profile: { name: me.name, email: me.email, role: me.role, groups: me.groups, leads: me.leads }
+		profile: { name: me.name, email: me.email, role: me.role, groups: me.groups, leads: me.leads },
+		prefs
 	};
 };
 
 export const actions: Actions = {
+	prefs: async (event) => {
+		const user = requireUser(event);
+		const form = await event.request.formData();
+		await setEmailPreferences(user.id, { confirmations: form.get('confirmations') === 'on' });
+		return { prefsSaved: true };
+	},
 	password: async (event) => {
 		const user = requireUser(event);
 		const parsed = changePasswordSchema.safeParse(

@@ -14,7 +14,9 @@ export function navFor(role: Role, isPi: boolean): NavItem[] {
 	if (hasRole(role, 'trainer')) items.push({ href: '/manage/training', label: 'Certifications' });
 	if (isPi || hasRole(role, 'manager'))
 		items.push({ href: '/manage/approvals', label: 'Approvals' });
+	if (hasRole(role, 'manager')) items.push({ href: '/manage/outbox', label: 'Outbox' });
 	if (role === 'admin') items.push({ href: '/admin/users', label: 'Users and roles' });
+	items.push({ href: '/notifications', label: 'Notifications' });
 	items.push({ href: '/account', label: 'Account' });
 	return items;
 }

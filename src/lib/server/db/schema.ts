@@ -6,3 +6,4 @@ export * from './training';
 export * from './boxes';
 export * from './bookings';
 export * from './atmosphere';
+export * from './notifications';

@@ -1,4 +1,12 @@
-import { datetime, index, int, mysqlEnum, mysqlTable, varchar } from 'drizzle-orm/mysql-core';
+import {
+	boolean,
+	datetime,
+	index,
+	int,
+	mysqlEnum,
+	mysqlTable,
+	varchar
+} from 'drizzle-orm/mysql-core';
 import { sql } from 'drizzle-orm';
 
 import { roles } from '../../domain/roles';
@@ -19,7 +27,9 @@ export const users = mysqlTable('users', {
 		.notNull()
 		.default(sql`CURRENT_TIMESTAMP`),
 	approvedAt: datetime({ mode: 'date' }),
-	approvedBy: int()
+	approvedBy: int(),
+	/** E-mail when a booking is made or approved; cancellations are always sent. */
+	emailConfirmations: boolean().notNull().default(true)
 });
 
 /** Lucia sessions. `id` is the SHA-256 of the cookie's token, so a leaked table opens nothing. */

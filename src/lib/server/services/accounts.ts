@@ -320,3 +320,19 @@ export async function setRole(actor: Actor, userId: number, role: Role) {
 		});
 	});
 }
+
+/** Which e-mails the user wants; cancellations are always sent and have no switch. */
+export async function setEmailPreferences(userId: number, prefs: { confirmations: boolean }) {
+	await db
+		.update(users)
+		.set({ emailConfirmations: prefs.confirmations })
+		.where(eq(users.id, userId));
+}
+
+export async function emailPreferences(userId: number) {
+	const [row] = await db
+		.select({ confirmations: users.emailConfirmations })
+		.from(users)
+		.where(eq(users.id, userId));
+	return row ?? { confirmations: true };
+}

@@ -21,6 +21,8 @@ import {
 import type { Actor } from './accounts';
 import { audit } from './audit';
 import { forbidden, notFound, ServiceError } from './errors';
+import { bookingConfirmed } from '../mail/messages';
+import { enqueue } from '../mail/outbox';
 
 const DEADLOCK = new Set(['ER_LOCK_DEADLOCK', 'ER_LOCK_WAIT_TIMEOUT']);
 
@@ -108,7 +110,7 @@ const MAX_PURGE_MS = 12 * 3_600_000;
 
 /** What does not race with other bookings: read before the box lock is taken. */
 async function readGates(userId: number, boxId: number) {
-	const [requiredModules, certs] = await Promise.all([
+	const [requiredModules, certs, [person]] = await Promise.all([
 		db
 			.select({ id: trainingModules.id, name: trainingModules.name })
 			.from(boxRequiredModules)
@@ -121,9 +123,17 @@ async function readGates(userId: number, boxId: number) {
 				expiresAt: certifications.expiresAt
 			})
 			.from(certifications)
-			.where(and(eq(certifications.userId, userId), sql`${certifications.revokedAt} IS NULL`))
+			.where(and(eq(certifications.userId, userId), sql`${certifications.revokedAt} IS NULL`)),
+		db
+			.select({
+				email: users.email,
+				name: users.name,
+				emailConfirmations: users.emailConfirmations
+			})
+			.from(users)
+			.where(eq(users.id, userId))
 	]);
-	return { requiredModules, certs };
+	return { requiredModules, certs, person };
 }
 
 type NearRow = {
@@ -137,6 +147,8 @@ type NearRow = {
 
 type RawBox = {
 	id: number;
+	name: string;
+	room: string;
 	status: Box['status'];
 	atmosphere_state: Box['atmosphereState'];
 	slot_step_min: number;
@@ -149,11 +161,13 @@ type RawBox = {
 	excluded_classes: string | string[];
 };
 const BOX_RULE_COLUMNS =
-	'id, status, atmosphere_state, slot_step_min, min_length_min, max_length_min, horizon_days, weekly_quota_min, purge_min, needs_approval, excluded_classes';
+	'id, name, room, status, atmosphere_state, slot_step_min, min_length_min, max_length_min, horizon_days, weekly_quota_min, purge_min, needs_approval, excluded_classes';
 
 function ruleBox(r: RawBox) {
 	return {
 		id: r.id,
+		name: r.name,
+		room: r.room,
 		status: r.status,
 		atmosphereState: r.atmosphere_state,
 		slotStepMin: r.slot_step_min,
@@ -310,9 +324,27 @@ export async function createBooking(actor: Actor, input: BookingInput, now = new
 					status: values.status
 				}
 			});
+			if (values.status === 'confirmed' && gates.person?.emailConfirmations) {
+				await queueConfirmation(
+					tx,
+					{ id: actor.id, ...gates.person },
+					{ id: created.id, ...values, sequence: 0 },
+					box
+				);
+			}
 			return { id: created.id, ...values, cancelReason: null, cancelCause: null };
 		})
 	);
+}
+
+async function queueConfirmation(
+	tx: Transaction,
+	person: { id: number; email: string; name: string },
+	b: { id: number; startAt: Date; endAt: Date; purpose: string; sequence: number },
+	box: { name: string; room: string }
+) {
+	const message = bookingConfirmed({ ...b, boxName: box.name, room: box.room }, person);
+	await enqueue(tx, person, message, `booking:${b.id}:confirmed:${b.sequence}`);
 }
 
 /** Checks a request without saving it (the form's early answer). */

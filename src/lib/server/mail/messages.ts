@@ -1,0 +1,100 @@
+// The words of Boxwright's e-mails. Each builder returns what the outbox stores.
+import { formatRange } from '$lib/domain/time';
+import { config } from '../config';
+import { bookingInvite, type IcsBooking } from '../ical';
+
+export type Message = {
+	kind: string;
+	subject: string;
+	text: string;
+	html: string;
+	icsMethod?: 'REQUEST' | 'CANCEL';
+	ics?: string;
+};
+
+const escape = (s: string) =>
+	s.replace(
+		/[&<>"']/g,
+		(c) => ({ '&': '&amp;', '<': '&lt;', '>': '&gt;', '"': '&quot;', "'": '&#39;' })[c]!
+	);
+
+function html(paragraphs: string[]): string {
+	return `<!doctype html><html><body style="font-family:sans-serif;color:#161c25">${paragraphs
+		.map((p) => `<p>${p}</p>`)
+		.join('')}</body></html>`;
+}
+
+function origin(): string {
+	return (process.env.ORIGIN ?? `http://localhost:${process.env.PORT ?? 3000}`).replace(/\/$/, '');
+}
+
+type Person = { name: string };
+
+export function bookingCancelled(
+	booking: IcsBooking,
+	person: Person,
+	reason: string,
+	alternatives: { start: Date; end: Date; boxName: string }[] = []
+): Message {
+	const when = formatRange(booking.startAt, booking.endAt, config.facilityTz);
+	const rebook = `${origin()}/bookings`;
+	const lines = [
+		`Hello ${person.name},`,
+		`your booking of ${booking.boxName} (room ${booking.room}) on ${when} has been cancelled.`,
+		`Reason: ${reason}`,
+		...(alternatives.length
+			? [
+					'Free slots of the same length you could take instead:',
+					...alternatives.map(
+						(a) => `  - ${a.boxName}, ${formatRange(a.start, a.end, config.facilityTz)}`
+					)
+				]
+			: []),
+		`Rebook: ${rebook}`,
+		`Questions: ${config.facilityContact}`
+	];
+	return {
+		kind: 'booking_cancelled',
+		subject: `Cancelled: ${booking.boxName}, ${when}`,
+		text: lines.join('\n'),
+		html: html([
+			`Hello ${escape(person.name)},`,
+			`your booking of <strong>${escape(booking.boxName)}</strong> (room ${escape(booking.room)}) on <strong>${escape(when)}</strong> has been cancelled.`,
+			`Reason: ${escape(reason)}`,
+			...(alternatives.length
+				? [
+						'Free slots of the same length you could take instead:<br>' +
+							alternatives
+								.map(
+									(a) =>
+										`${escape(a.boxName)}, ${escape(formatRange(a.start, a.end, config.facilityTz))}`
+								)
+								.join('<br>')
+					]
+				: []),
+			`<a href="${escape(rebook)}">Rebook in Boxwright</a> · questions to ${escape(config.facilityContact)}`
+		]),
+		icsMethod: 'CANCEL',
+		ics: bookingInvite(booking, 'CANCEL', reason)
+	};
+}
+
+export function bookingConfirmed(booking: IcsBooking, person: Person): Message {
+	const when = formatRange(booking.startAt, booking.endAt, config.facilityTz);
+	return {
+		kind: 'booking_confirmed',
+		subject: `Booked: ${booking.boxName}, ${when}`,
+		text: [
+			`Hello ${person.name},`,
+			`you have ${booking.boxName} (room ${booking.room}) on ${when} for: ${booking.purpose}.`,
+			`Your bookings: ${origin()}/bookings`
+		].join('\n'),
+		html: html([
+			`Hello ${escape(person.name)},`,
+			`you have <strong>${escape(booking.boxName)}</strong> (room ${escape(booking.room)}) on <strong>${escape(when)}</strong> for: ${escape(booking.purpose)}.`,
+			`<a href="${escape(origin())}/bookings">Your bookings</a>`
+		]),
+		icsMethod: 'REQUEST',
+		ics: bookingInvite(booking, 'REQUEST')
+	};
+}

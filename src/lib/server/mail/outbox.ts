@@ -1,0 +1,43 @@
+import type { Database } from '../db/connect';
+import type { Transaction } from '../db';
+import { notifications, outbox } from '../db/schema';
+import type { Message } from './messages';
+
+type Recipient = { id: number; email: string };
+
+/**
+ * Queues an e-mail (and optionally an in-app notification) inside the caller's
+ * transaction, so the message exists exactly when the change it reports does.
+ * The dedupe key makes a repeat of the same change queue nothing new.
+ */
+export async function enqueue(
+	tx: Database | Transaction,
+	to: Recipient,
+	message: Message,
+	dedupeKey: string,
+	inApp?: { title: string; body: string; link?: string }
+) {
+	await tx
+		.insert(outbox)
+		.ignore()
+		.values({
+			recipientId: to.id,
+			toAddress: to.email,
+			kind: message.kind,
+			subject: message.subject,
+			textBody: message.text,
+			htmlBody: message.html,
+			icsMethod: message.icsMethod ?? null,
+			icsBody: message.ics ?? null,
+			dedupeKey
+		});
+	if (inApp) {
+		await tx.insert(notifications).values({
+			userId: to.id,
+			kind: message.kind,
+			title: inApp.title,
+			body: inApp.body,
+			link: inApp.link ?? null
+		});
+	}
+}

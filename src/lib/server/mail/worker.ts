@@ -1,0 +1,147 @@
+// Drains the outbox. Any number of app processes may run this at once: rows are claimed
+// with SELECT … FOR UPDATE SKIP LOCKED and marked 'sending' before the SMTP call, so two
+// workers never pick the same row. A crash between the SMTP server's acceptance and the
+// 'sent' mark can repeat that one message (at-least-once); its Message-ID stays the same,
+// so mail clients drop the repeat.
+import nodemailer, { type Transporter } from 'nodemailer';
+import { and, eq, inArray, lte, or, sql } from 'drizzle-orm';
+import { db } from '../db';
+import { outbox } from '../db/schema';
+
+export const MAX_ATTEMPTS = Number(process.env.OUTBOX_MAX_ATTEMPTS ?? 8);
+/** A 'sending' row older than this belonged to a worker that died; it is retried. */
+const STALE_CLAIM_MS = 5 * 60_000;
+
+/** Exponential backoff: 2 s, 4 s, 8 s … capped at 10 minutes. */
+export function backoffMs(attempts: number): number {
+	const base = Number(process.env.OUTBOX_BACKOFF_MS ?? 2000);
+	return Math.min(base * 2 ** Math.max(0, attempts - 1), 10 * 60_000);
+}
+
+let transporter: Transporter | undefined;
+function transport(): Transporter {
+	const url = new URL(process.env.SMTP_URL ?? `smtp://127.0.0.1:${process.env.SMTP_PORT ?? 2525}`);
+	const secure = url.protocol === 'smtps:';
+	transporter ??= nodemailer.createTransport({
+		host: url.hostname,
+		port: Number(url.port || (secure ? 465 : 587)),
+		secure,
+		auth: url.username
+			? { user: decodeURIComponent(url.username), pass: decodeURIComponent(url.password) }
+			: undefined,
+		// The local sink speaks plain SMTP on loopback; real servers negotiate TLS.
+		ignoreTLS: ['127.0.0.1', 'localhost'].includes(url.hostname),
+		connectionTimeout: 5000,
+		greetingTimeout: 5000,
+		socketTimeout: 10000
+	});
+	return transporter;
+}
+
+async function claim(limit: number) {
+	return db.transaction(async (tx) => {
+		const now = new Date();
+		const due = await tx
+			.select({ id: outbox.id })
+			.from(outbox)
+			.where(
+				or(
+					and(eq(outbox.status, 'pending'), lte(outbox.nextAttemptAt, now)),
+					and(
+						eq(outbox.status, 'sending'),
+						lte(outbox.claimedAt, new Date(now.getTime() - STALE_CLAIM_MS))
+					)
+				)
+			)
+			.orderBy(outbox.id)
+			.limit(limit)
+			.for('update', { skipLocked: true });
+		if (!due.length) return [];
+		const ids = due.map((r) => r.id);
+		await tx
+			.update(outbox)
+			.set({ status: 'sending', claimedAt: now, attempts: sql`${outbox.attempts} + 1` })
+			.where(inArray(outbox.id, ids));
+		return tx.select().from(outbox).where(inArray(outbox.id, ids));
+	});
+}
+
+const from = () => process.env.MAIL_FROM ?? 'Boxwright <boxwright@example.org>';
+
+/** Sends what is due; returns how many were sent and how many failed this round. */
+export async function drainOnce(limit = 20): Promise<{ sent: number; failed: number }> {
+	const rows = await claim(limit);
+	let sent = 0;
+	let failed = 0;
+	for (const row of rows) {
+		try {
+			await transport().sendMail({
+				from: from(),
+				to: row.toAddress,
+				subject: row.subject,
+				text: row.textBody,
+				html: row.htmlBody,
+				messageId: `<outbox-${row.id}.${row.dedupeKey.replace(/[^a-zA-Z0-9.-]/g, '-')}@boxwright>`,
+				icalEvent: row.icsBody
+					? { method: row.icsMethod ?? 'REQUEST', content: row.icsBody, filename: 'booking.ics' }
+					: undefined
+			});
+			await db
+				.update(outbox)
+				.set({ status: 'sent', sentAt: new Date(), lastError: null })
+				.where(eq(outbox.id, row.id));
+			sent++;
+		} catch (e) {
+			const giveUp = row.attempts >= MAX_ATTEMPTS;
+			await db
+				.update(outbox)
+				.set({
+					status: giveUp ? 'failed' : 'pending',
+					nextAttemptAt: new Date(Date.now() + backoffMs(row.attempts)),
+					lastError: String((e as Error)?.message ?? e).slice(0, 1000)
+				})
+				.where(eq(outbox.id, row.id));
+			failed++;
+		}
+	}
+	return { sent, failed };
+}
+
+let timer: NodeJS.Timeout | undefined;
+let running = false;
+
+/** Polls the outbox every `intervalMs` until stopped; one round at a time per process. */
+export function startWorker(intervalMs = Number(process.env.OUTBOX_POLL_MS ?? 1000)) {
+	if (timer) return;
+	const tick = async () => {
+		if (running) return;
+		running = true;
+		try {
+			while ((await drainOnce()).sent > 0) {
+				// keep going while there is mail
+			}
+		} catch (e) {
+			console.error('[boxwright] outbox worker:', (e as Error).message);
+		} finally {
+			running = false;
+		}
+	};
+	timer = setInterval(tick, intervalMs);
+	timer.unref();
+}
+
+export function stopWorker() {
+	if (timer) clearInterval(timer);
+	timer = undefined;
+	transporter?.close();
+	transporter = undefined;
+}
+
+/** Managers put a failed message back in the queue. */
+export async function retryMessage(id: number) {
+	const result = await db
+		.update(outbox)
+		.set({ status: 'pending', attempts: 0, nextAttemptAt: new Date(), lastError: null })
+		.where(and(eq(outbox.id, id), eq(outbox.status, 'failed')));
+	return (result[0] as { affectedRows: number }).affectedRows > 0;
+}

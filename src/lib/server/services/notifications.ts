@@ -1,0 +1,48 @@
+import { and, desc, eq, isNull, sql } from 'drizzle-orm';
+import { db } from '../db';
+import { notifications, outbox } from '../db/schema';
+
+export async function unreadCount(userId: number): Promise<number> {
+	const [row] = await db
+		.select({ n: sql<number>`count(*)` })
+		.from(notifications)
+		.where(and(eq(notifications.userId, userId), isNull(notifications.readAt)));
+	return Number(row?.n ?? 0);
+}
+
+export async function notificationsOf(userId: number, limit = 50) {
+	return db
+		.select()
+		.from(notifications)
+		.where(eq(notifications.userId, userId))
+		.orderBy(desc(notifications.id))
+		.limit(limit);
+}
+
+export async function markAllRead(userId: number) {
+	await db
+		.update(notifications)
+		.set({ readAt: new Date() })
+		.where(and(eq(notifications.userId, userId), isNull(notifications.readAt)));
+}
+
+/** The outbox for managers: newest first, optionally one status. */
+export async function outboxPage(status?: 'pending' | 'sending' | 'sent' | 'failed', limit = 100) {
+	return db
+		.select({
+			id: outbox.id,
+			toAddress: outbox.toAddress,
+			kind: outbox.kind,
+			subject: outbox.subject,
+			status: outbox.status,
+			attempts: outbox.attempts,
+			nextAttemptAt: outbox.nextAttemptAt,
+			lastError: outbox.lastError,
+			createdAt: outbox.createdAt,
+			sentAt: outbox.sentAt
+		})
+		.from(outbox)
+		.where(status ? eq(outbox.status, status) : undefined)
+		.orderBy(desc(outbox.id))
+		.limit(limit);
+}

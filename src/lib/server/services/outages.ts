@@ -1,0 +1,229 @@
+import { and, desc, eq, gt, inArray, lt, sql } from 'drizzle-orm';
+import type { OutageKind } from '$lib/domain/bookings';
+import { hasRole } from '$lib/domain/roles';
+import { db, type Transaction } from '../db';
+import { bookings, boxes, outages, users } from '../db/schema';
+import { bookingCancelled } from '../mail/messages';
+import { enqueue } from '../mail/outbox';
+import type { Actor } from './accounts';
+import { audit } from './audit';
+import { withRetry } from './bookings';
+import { forbidden, notFound, ServiceError } from './errors';
+
+export type OutageInput = { start: Date; end: Date; kind: OutageKind; reason: string };
+
+/**
+ * Cancels every pending or confirmed booking on the box that overlaps [start, end), and
+ * queues one e-mail and one in-app notice per booking, all in the caller's transaction.
+ */
+async function cancelOverlapping(
+	tx: Transaction,
+	actor: Actor,
+	box: { id: number; name: string; room: string },
+	start: Date,
+	end: Date,
+	reason: string,
+	now: Date
+): Promise<number[]> {
+	const hit = await tx
+		.select({
+			id: bookings.id,
+			startAt: bookings.startAt,
+			endAt: bookings.endAt,
+			purpose: bookings.purpose,
+			sequence: bookings.sequence,
+			userId: users.id,
+			email: users.email,
+			name: users.name
+		})
+		.from(bookings)
+		.innerJoin(users, eq(users.id, bookings.userId))
+		.where(
+			and(
+				eq(bookings.boxId, box.id),
+				inArray(bookings.status, ['pending', 'confirmed']),
+				lt(bookings.startAt, end),
+				gt(bookings.endAt, start)
+			)
+		)
+		.for('update');
+	if (!hit.length) return [];
+	const ids = hit.map((b) => b.id);
+	await tx
+		.update(bookings)
+		.set({
+			status: 'cancelled',
+			cancelCause: 'outage',
+			cancelReason: reason,
+			cancelledAt: now,
+			cancelledBy: actor.id,
+			sequence: sql`${bookings.sequence} + 1`
+		})
+		.where(inArray(bookings.id, ids));
+	for (const b of hit) {
+		const sequence = b.sequence + 1;
+		const message = bookingCancelled(
+			{
+				id: b.id,
+				startAt: b.startAt,
+				endAt: b.endAt,
+				sequence,
+				boxName: box.name,
+				room: box.room,
+				purpose: b.purpose,
+				updatedAt: now
+			},
+			{ name: b.name },
+			reason
+		);
+		await enqueue(
+			tx,
+			{ id: b.userId, email: b.email },
+			message,
+			`booking:${b.id}:cancelled:${sequence}`,
+			{
+				title: message.subject,
+				body: `Reason: ${reason}`,
+				link: '/bookings'
+			}
+		);
+	}
+	return ids;
+}
+
+async function lockBox(tx: Transaction, boxId: number) {
+	const [box] = await tx
+		.select({ id: boxes.id, name: boxes.name, room: boxes.room })
+		.from(boxes)
+		.where(eq(boxes.id, boxId))
+		.for('update');
+	if (!box) throw notFound('The box');
+	return box;
+}
+
+/** Takes a box out of service; every overlapping booking is cancelled and its holder told. */
+export async function createOutage(
+	actor: Actor,
+	boxId: number,
+	input: OutageInput,
+	now = new Date()
+) {
+	if (!hasRole(actor.role, 'manager'))
+		throw forbidden('Only a manager can take a box out of service.');
+	if (input.end <= input.start) {
+		throw new ServiceError(400, 'The expected end must be after the start.', {
+			fields: { end: 'The expected end must be after the start.' }
+		});
+	}
+	return withRetry(() =>
+		db.transaction(async (tx) => {
+			const box = await lockBox(tx, boxId);
+			const [created] = await tx
+				.insert(outages)
+				.values({
+					boxId,
+					startAt: input.start,
+					endAt: input.end,
+					kind: input.kind,
+					reason: input.reason,
+					createdBy: actor.id
+				})
+				.$returningId();
+			// Bookings ending after the outage starts and starting before it ends; a booking's
+			// purge buffer alone does not make it overlap.
+			const cancelledBookingIds = await cancelOverlapping(
+				tx,
+				actor,
+				box,
+				input.start,
+				input.end,
+				input.reason,
+				now
+			);
+			await audit(tx, {
+				actorId: actor.id,
+				action: 'outage.created',
+				entity: 'outage',
+				entityId: created.id,
+				details: {
+					boxId,
+					kind: input.kind,
+					start: input.start.toISOString(),
+					end: input.end.toISOString(),
+					cancelledBookingIds
+				}
+			});
+			const [outage] = await tx.select().from(outages).where(eq(outages.id, created.id));
+			return { outage, cancelledBookingIds };
+		})
+	);
+}
+
+/** Moves the expected end. A later end cancels what the longer outage now overlaps. */
+export async function extendOutage(actor: Actor, outageId: number, end: Date, now = new Date()) {
+	if (!hasRole(actor.role, 'manager')) throw forbidden('Only a manager can change an outage.');
+	return withRetry(() =>
+		db.transaction(async (tx) => {
+			const [current] = await tx
+				.select()
+				.from(outages)
+				.where(eq(outages.id, outageId))
+				.for('update');
+			if (!current) throw notFound('The outage');
+			if (end <= current.startAt) {
+				throw new ServiceError(400, 'The expected end must be after the start.', {
+					fields: { end: 'The expected end must be after the start.' }
+				});
+			}
+			const box = await lockBox(tx, current.boxId);
+			await tx
+				.update(outages)
+				.set({ endAt: end, sequence: sql`${outages.sequence} + 1` })
+				.where(eq(outages.id, outageId));
+			const cancelledBookingIds =
+				end > current.endAt
+					? await cancelOverlapping(tx, actor, box, current.endAt, end, current.reason, now)
+					: [];
+			await audit(tx, {
+				actorId: actor.id,
+				action: 'outage.changed',
+				entity: 'outage',
+				entityId: outageId,
+				details: { from: current.endAt.toISOString(), to: end.toISOString(), cancelledBookingIds }
+			});
+			const [outage] = await tx.select().from(outages).where(eq(outages.id, outageId));
+			return { outage, cancelledBookingIds };
+		})
+	);
+}
+
+/** Ends an outage now: the box is back in service. Cancelled bookings stay cancelled. */
+export async function endOutage(actor: Actor, outageId: number, now = new Date()) {
+	if (!hasRole(actor.role, 'manager')) throw forbidden('Only a manager can end an outage.');
+	await db.transaction(async (tx) => {
+		const [current] = await tx.select().from(outages).where(eq(outages.id, outageId)).for('update');
+		if (!current) throw notFound('The outage');
+		if (current.endAt <= now) throw new ServiceError(409, 'This outage has already ended.');
+		const endAt = current.startAt > now ? current.startAt : now;
+		await tx
+			.update(outages)
+			.set({ endAt, sequence: sql`${outages.sequence} + 1` })
+			.where(eq(outages.id, outageId));
+		await audit(tx, {
+			actorId: actor.id,
+			action: 'outage.ended',
+			entity: 'outage',
+			entityId: outageId,
+			details: { endAt: endAt.toISOString() }
+		});
+	});
+}
+
+export async function outagesOf(boxId: number, limit = 20) {
+	return db
+		.select()
+		.from(outages)
+		.where(eq(outages.boxId, boxId))
+		.orderBy(desc(outages.startAt))
+		.limit(limit);
+}

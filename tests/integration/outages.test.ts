@@ -1,0 +1,290 @@
+import { afterAll, describe, expect, it } from 'vitest';
+import { rmSync, writeFileSync } from 'node:fs';
+import { join } from 'node:path';
+import { and, eq, inArray, sql } from 'drizzle-orm';
+import ICAL from 'ical.js';
+import { bookings, notifications, outages, outbox } from '../../src/lib/server/db/schema';
+import { closeTestDb, makeBox, makeUser, testDb } from '../support/db';
+import { Client, errorOf } from '../support/http';
+import { sunkMail } from '../support/mail';
+import { slot } from '../support/time';
+
+afterAll(closeTestDb);
+
+async function signedIn(user: { email: string; password: string }) {
+	const client = new Client();
+	await client.signIn(user.email, user.password);
+	return client;
+}
+
+/** `count` confirmed bookings on a fresh box, one hour each, each by a different person. */
+async function boxWithBookings(count: number, daysAhead: number) {
+	const boxId = await makeBox();
+	const people = await Promise.all(Array.from({ length: count }, () => makeUser('member')));
+	const day = slot(daysAhead, 0, 24 * 60);
+	const dayStart = new Date(day.start).getTime();
+	const ids: number[] = [];
+	for (let i = 0; i < count; i++) {
+		const startAt = new Date(dayStart + i * 3_600_000);
+		const endAt = new Date(startAt.getTime() + 3_600_000);
+		const [row] = await testDb()
+			.insert(bookings)
+			.values({
+				boxId,
+				userId: people[i].id,
+				startAt,
+				endAt,
+				blockedUntil: endAt,
+				purpose: `work ${i}`,
+				status: 'confirmed'
+			})
+			.$returningId();
+		ids.push(row.id);
+	}
+	return {
+		boxId,
+		people,
+		ids,
+		window: { start: day.start, end: new Date(dayStart + count * 3_600_000).toISOString() }
+	};
+}
+
+/** Polls until `check` holds; a deadline, not a sleep, decides when to give up. */
+async function until(check: () => Promise<boolean>, seconds = 20) {
+	const deadline = Date.now() + seconds * 1000;
+	while (Date.now() < deadline) {
+		if (await check()) return;
+		await new Promise((r) => setTimeout(r, 100));
+	}
+	throw new Error('condition not reached in time');
+}
+
+const sinkDir = () => {
+	const dir = process.env.MAIL_SINK_DIR;
+	if (!dir) throw new Error('MAIL_SINK_DIR is not set; run `npm test`.');
+	return dir;
+};
+
+const sinkMessagesFor = (outboxId: number) =>
+	sunkMail(sinkDir()).filter((m) => m.messageId.startsWith(`<outbox-${outboxId}.`));
+
+describe('POST /api/boxes/:id/outages', () => {
+	it('an outage over 20 bookings cancels all 20 with reason and cause and queues 20 messages', async () => {
+		const { boxId, ids, window } = await boxWithBookings(20, 9);
+		const manager = await signedIn(await makeUser('manager'));
+		const r = await manager.post(`/api/boxes/${boxId}/outages`, {
+			...window,
+			kind: 'glove_change',
+			reason: 'Glove change on the front-left port'
+		});
+		expect(r.status).toBe(201);
+		const body = await r.json();
+		expect(body.outage).toMatchObject({ boxId, kind: 'glove_change' });
+		expect([...body.cancelledBookingIds].sort((a: number, b: number) => a - b)).toEqual(ids);
+
+		const rows = await testDb().select().from(bookings).where(inArray(bookings.id, ids));
+		expect(rows.every((b) => b.status === 'cancelled' && b.cancelCause === 'outage')).toBe(true);
+		expect(
+			rows.every(
+				(b) => b.cancelReason === 'Glove change on the front-left port' && b.sequence === 1
+			)
+		).toBe(true);
+		const queued = await testDb()
+			.select()
+			.from(outbox)
+			.where(
+				inArray(
+					outbox.dedupeKey,
+					ids.map((id) => `booking:${id}:cancelled:1`)
+				)
+			);
+		expect(queued).toHaveLength(20);
+		const notices = await testDb()
+			.select({ n: sql<number>`count(*)` })
+			.from(notifications)
+			.where(
+				inArray(
+					notifications.userId,
+					rows.map((b) => b.userId)
+				)
+			);
+		expect(Number(notices[0].n)).toBe(20);
+	});
+
+	it('a failure midway changes nothing: no outage, no cancellation, no message', async () => {
+		const { boxId, ids, people, window } = await boxWithBookings(20, 10);
+		const victim = people[9].id;
+		const db = testDb();
+		// A trigger makes the tenth notification fail, inside the outage's transaction.
+		await db.execute(sql.raw(`DROP TRIGGER IF EXISTS test_fail_notice`));
+		await db.execute(
+			sql.raw(
+				`CREATE TRIGGER test_fail_notice BEFORE INSERT ON notifications FOR EACH ROW ` +
+					`BEGIN IF NEW.user_id = ${victim} THEN SIGNAL SQLSTATE '45000' SET MESSAGE_TEXT = 'forced failure'; END IF; END`
+			)
+		);
+		try {
+			const manager = await signedIn(await makeUser('manager'));
+			const r = await manager.post(`/api/boxes/${boxId}/outages`, {
+				...window,
+				kind: 'leak',
+				reason: 'Leak at the antechamber door'
+			});
+			expect(r.status).toBe(500);
+			expect((await errorOf(r)).code).toBe('internal');
+		} finally {
+			await db.execute(sql.raw(`DROP TRIGGER IF EXISTS test_fail_notice`));
+		}
+		const rows = await db.select().from(bookings).where(inArray(bookings.id, ids));
+		expect(rows.every((b) => b.status === 'confirmed' && b.sequence === 0)).toBe(true);
+		expect(await db.select().from(outages).where(eq(outages.boxId, boxId))).toEqual([]);
+		const queued = await db
+			.select()
+			.from(outbox)
+			.where(
+				inArray(
+					outbox.dedupeKey,
+					ids.map((id) => `booking:${id}:cancelled:1`)
+				)
+			);
+		expect(queued).toEqual([]);
+	});
+
+	it('refuses bad input and non-managers', async () => {
+		const boxId = await makeBox();
+		const manager = await signedIn(await makeUser('manager'));
+		const { start, end } = slot(11, 9, 120);
+		const backwards = await manager.post(`/api/boxes/${boxId}/outages`, {
+			start: end,
+			end: start,
+			kind: 'leak',
+			reason: 'Leak'
+		});
+		expect(backwards.status).toBe(400);
+		expect((await errorOf(backwards)).details?.fields).toHaveProperty('end');
+		const badKind = await manager.post(`/api/boxes/${boxId}/outages`, {
+			start,
+			end,
+			kind: 'party',
+			reason: 'Leak'
+		});
+		expect((await errorOf(badKind)).details?.fields).toHaveProperty('kind');
+		expect(
+			(
+				await manager.post(`/api/boxes/99999999/outages`, {
+					start,
+					end,
+					kind: 'leak',
+					reason: 'Leak'
+				})
+			).status
+		).toBe(404);
+		const member = await signedIn(await makeUser('member'));
+		const refused = await member.post(`/api/boxes/${boxId}/outages`, {
+			start,
+			end,
+			kind: 'leak',
+			reason: 'Leak'
+		});
+		expect(refused.status).toBe(403);
+		expect(await testDb().select().from(outages).where(eq(outages.boxId, boxId))).toEqual([]);
+	});
+});
+
+describe('the outbox and the mail sink', () => {
+	it('the cancellation carries a METHOD:CANCEL invitation with the booking UID and a raised SEQUENCE', async () => {
+		const { boxId, ids, window } = await boxWithBookings(1, 12);
+		const manager = await signedIn(await makeUser('manager'));
+		expect(
+			(
+				await manager.post(`/api/boxes/${boxId}/outages`, {
+					...window,
+					kind: 'sensor',
+					reason: 'O₂ sensor fault'
+				})
+			).status
+		).toBe(201);
+		const [row] = await testDb()
+			.select()
+			.from(outbox)
+			.where(eq(outbox.dedupeKey, `booking:${ids[0]}:cancelled:1`));
+		expect(row.icsMethod).toBe('CANCEL');
+		const calendar = new ICAL.Component(ICAL.parse(row.icsBody!));
+		expect(calendar.getFirstPropertyValue('method')).toBe('CANCEL');
+		const event = new ICAL.Event(calendar.getFirstSubcomponent('vevent')!);
+		expect(event.uid).toBe(`booking-${ids[0]}@boxwright`);
+		expect(event.sequence).toBe(1);
+		expect(event.component.getFirstPropertyValue('status')).toBe('CANCELLED');
+
+		await until(async () => sinkMessagesFor(row.id).length === 1);
+		const mail = sinkMessagesFor(row.id)[0];
+		expect(mail.raw).toMatch(/text\/calendar; charset=utf-8; method=CANCEL/i);
+		expect(mail.subject).toMatch(/^Cancelled: Test box/);
+		expect(mail.raw).toContain(`booking-${ids[0]}@boxwright`);
+	});
+
+	it('with the sink refusing, messages wait; once it is back all arrive, none twice, with two workers', async () => {
+		const pauseFile = join(sinkDir(), 'paused');
+		writeFileSync(pauseFile, 'paused by a test');
+		const { worker } = { worker: await import('../../src/lib/server/mail/worker') };
+		try {
+			const { boxId, ids, window } = await boxWithBookings(6, 13);
+			const manager = await signedIn(await makeUser('manager'));
+			expect(
+				(
+					await manager.post(`/api/boxes/${boxId}/outages`, {
+						...window,
+						kind: 'regeneration',
+						reason: 'Purifier regeneration'
+					})
+				).status
+			).toBe(201);
+			const keys = ids.map((id) => `booking:${id}:cancelled:1`);
+			const rows = () => testDb().select().from(outbox).where(inArray(outbox.dedupeKey, keys));
+
+			// The app's worker tries, the sink says 421, the rows wait with the error noted.
+			await until(async () =>
+				(await rows()).every((r) => r.attempts >= 1 && r.status === 'pending' && r.lastError)
+			);
+			expect((await rows()).flatMap((r) => sinkMessagesFor(r.id))).toEqual([]);
+
+			// A second worker in this process, beside the app's own.
+			worker.startWorker(100);
+			rmSync(pauseFile);
+			await until(async () => (await rows()).every((r) => r.status === 'sent'));
+			for (const r of await rows()) expect(sinkMessagesFor(r.id)).toHaveLength(1);
+		} finally {
+			rmSync(pauseFile, { force: true });
+			worker.stopWorker();
+		}
+	});
+});
+
+describe('changing and ending an outage', () => {
+	it('a later end cancels what it now overlaps; ending early returns the box to service', async () => {
+		const { boxId, ids, window } = await boxWithBookings(3, 14);
+		const manager = await signedIn(await makeUser('manager'));
+		const firstEnd = new Date(new Date(window.start).getTime() + 3_600_000).toISOString();
+		const r = await manager.post(`/api/boxes/${boxId}/outages`, {
+			start: window.start,
+			end: firstEnd,
+			kind: 'other',
+			reason: 'Inspection'
+		});
+		expect((await r.json()).cancelledBookingIds).toEqual([ids[0]]);
+
+		const { extendOutage, endOutage } = await import('../../src/lib/server/services/outages');
+		const [outage] = await testDb().select().from(outages).where(eq(outages.boxId, boxId));
+		const actor = { id: outage.createdBy!, role: 'manager' as const };
+		const extended = await extendOutage(actor, outage.id, new Date(window.end));
+		expect(extended.cancelledBookingIds.sort()).toEqual([ids[1], ids[2]].sort());
+		await endOutage(actor, outage.id);
+		const [ended] = await testDb()
+			.select()
+			.from(outages)
+			.where(and(eq(outages.id, outage.id)));
+		expect(ended.endAt.getTime()).toBeLessThanOrEqual(
+			Math.max(Date.now(), new Date(window.start).getTime()) + 1000
+		);
+	});
+});
