@@ -11,6 +11,7 @@ import {
 	boxPorts,
 	boxRequiredModules,
 	certifications,
+	gloves,
 	modulePrerequisites,
 	moduleTrainers,
 	trainingModules
@@ -318,6 +319,22 @@ export async function seedBoxesAndBookings(
 		if (!clash) kept.push(r);
 	}
 	await db.insert(bookings).values(kept);
+
+	// A butyl glove on every port; Kestrel's front-right one is near the end of its life.
+	const ports = await db.select().from(boxPorts).where(inArray(boxPorts.boxId, boxIds));
+	await db.insert(gloves).values(
+		ports.map((p, i) => {
+			const worn = p.position === 'front-right' && p.boxId === boxIds[0];
+			return {
+				portId: p.id,
+				material: 'butyl' as const,
+				thicknessMm: 0.4,
+				size: '8',
+				hand: p.position.endsWith('left') ? ('left' as const) : ('right' as const),
+				installedAt: now.minus({ months: worn ? 13 : 2 + (i % 4), days: i }).toJSDate()
+			};
+		})
+	);
 
 	// Readings every 3 hours for two weeks; Tern drifts above its warn level today.
 	const readings: (typeof atmosphereReadings.$inferInsert)[] = [];

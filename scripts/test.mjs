@@ -45,6 +45,7 @@ const env = {
 	OUTBOX_BACKOFF_MS: '200',
 	OUTBOX_POLL_MS: '200',
 	DATABASE_URL: db.url,
+	BODY_SIZE_LIMIT: process.env.BODY_SIZE_LIMIT ?? '8M',
 	PORT: port,
 	ORIGIN: baseUrl,
 	APP_URL: baseUrl,

@@ -7,6 +7,7 @@ import {
 	boxPorts,
 	boxRequiredModules,
 	certifications,
+	gloves,
 	groupMemberships,
 	researchGroups,
 	trainingModules,
@@ -134,4 +135,21 @@ export async function certifiedMemberAndBox(box: Partial<typeof boxes.$inferInse
 	const user = await makeUser('member');
 	await certify(user.id, moduleId);
 	return { user, boxId, moduleId };
+}
+
+/** A glove on each port of the box (as makeBox creates them: front-left, front-right). */
+export async function fitGloves(boxId: number) {
+	const db = testDb();
+	const ports = await db.select().from(boxPorts).where(eq(boxPorts.boxId, boxId));
+	for (const p of ports) {
+		await db.insert(gloves).values({
+			portId: p.id,
+			material: 'butyl',
+			thicknessMm: 0.4,
+			size: '8',
+			hand: p.position.endsWith('left') ? 'left' : 'right',
+			installedAt: new Date(Date.now() - 60 * 86_400_000)
+		});
+	}
+	return ports;
 }

@@ -17,7 +17,11 @@ export class Client {
 		const init: RequestInit = { method, redirect: 'manual', headers: { ...headers } };
 		const h = init.headers as Record<string, string>;
 		if (this.cookies.size) h.cookie = [...this.cookies].map(([k, v]) => `${k}=${v}`).join('; ');
-		if (body instanceof URLSearchParams) {
+		if (body instanceof FormData) {
+			init.body = body;
+			h.origin = baseUrl;
+			h.accept ??= 'text/html';
+		} else if (body instanceof URLSearchParams) {
 			init.body = body;
 			h['content-type'] = 'application/x-www-form-urlencoded';
 			h.origin = baseUrl; // SvelteKit's CSRF check for form posts

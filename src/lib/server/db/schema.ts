@@ -7,3 +7,4 @@ export * from './boxes';
 export * from './bookings';
 export * from './atmosphere';
 export * from './notifications';
+export * from './gloves';

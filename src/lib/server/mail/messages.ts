@@ -98,3 +98,14 @@ export function bookingConfirmed(booking: IcsBooking, person: Person): Message {
 		ics: bookingInvite(booking, 'REQUEST')
 	};
 }
+
+/** A plain notice to facility staff (alarms, damaged gloves). */
+export function staffNotice(title: string, body: string, link: string): Message {
+	const url = `${origin()}${link}`;
+	return {
+		kind: 'staff_notice',
+		subject: title,
+		text: `${body}\n\n${url}`,
+		html: html([escape(body), `<a href="${escape(url)}">Open in Boxwright</a>`])
+	};
+}

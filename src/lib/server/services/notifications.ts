@@ -1,6 +1,8 @@
-import { and, desc, eq, isNull, sql } from 'drizzle-orm';
+import { and, desc, eq, inArray, isNull, sql } from 'drizzle-orm';
 import { db } from '../db';
-import { notifications, outbox } from '../db/schema';
+import { notifications, outbox, users } from '../db/schema';
+import { staffNotice } from '../mail/messages';
+import { enqueue } from '../mail/outbox';
 
 export async function unreadCount(userId: number): Promise<number> {
 	const [row] = await db
@@ -45,4 +47,18 @@ export async function outboxPage(status?: 'pending' | 'sending' | 'sent' | 'fail
 		.where(status ? eq(outbox.status, status) : undefined)
 		.orderBy(desc(outbox.id))
 		.limit(limit);
+}
+
+/** Tells every active manager and admin, by e-mail and in the app, once per `dedupe`. */
+export async function notifyManagers(title: string, body: string, link: string, dedupe: string) {
+	const staff = await db
+		.select({ id: users.id, email: users.email })
+		.from(users)
+		.where(and(inArray(users.role, ['manager', 'admin']), eq(users.status, 'active')));
+	const message = staffNotice(title, body, link);
+	await db.transaction(async (tx) => {
+		for (const person of staff) {
+			await enqueue(tx, person, message, `${dedupe}:${person.id}`, { title, body, link });
+		}
+	});
 }

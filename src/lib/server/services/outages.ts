@@ -117,46 +117,58 @@ export async function createOutage(
 	}
 	return withRetry(() =>
 		db.transaction(async (tx) => {
-			const box = await lockBox(tx, boxId);
-			const [created] = await tx
-				.insert(outages)
-				.values({
-					boxId,
-					startAt: input.start,
-					endAt: input.end,
-					kind: input.kind,
-					reason: input.reason,
-					createdBy: actor.id
-				})
-				.$returningId();
-			// Bookings ending after the outage starts and starting before it ends; a booking's
-			// purge buffer alone does not make it overlap.
-			const cancelledBookingIds = await cancelOverlapping(
-				tx,
-				actor,
-				box,
-				input.start,
-				input.end,
-				input.reason,
-				now
-			);
-			await audit(tx, {
-				actorId: actor.id,
-				action: 'outage.created',
-				entity: 'outage',
-				entityId: created.id,
-				details: {
-					boxId,
-					kind: input.kind,
-					start: input.start.toISOString(),
-					end: input.end.toISOString(),
-					cancelledBookingIds
-				}
-			});
-			const [outage] = await tx.select().from(outages).where(eq(outages.id, created.id));
+			const { outageId, cancelledBookingIds } = await openOutage(tx, actor, boxId, input, now);
+			const [outage] = await tx.select().from(outages).where(eq(outages.id, outageId));
 			return { outage, cancelledBookingIds };
 		})
 	);
+}
+
+/** The body of createOutage, for callers that open an outage inside their own transaction. */
+export async function openOutage(
+	tx: Transaction,
+	actor: Actor,
+	boxId: number,
+	input: OutageInput,
+	now: Date
+) {
+	const box = await lockBox(tx, boxId);
+	const [created] = await tx
+		.insert(outages)
+		.values({
+			boxId,
+			startAt: input.start,
+			endAt: input.end,
+			kind: input.kind,
+			reason: input.reason,
+			createdBy: actor.id
+		})
+		.$returningId();
+	// Bookings ending after the outage starts and starting before it ends; a booking's
+	// purge buffer alone does not make it overlap.
+	const cancelledBookingIds = await cancelOverlapping(
+		tx,
+		actor,
+		box,
+		input.start,
+		input.end,
+		input.reason,
+		now
+	);
+	await audit(tx, {
+		actorId: actor.id,
+		action: 'outage.created',
+		entity: 'outage',
+		entityId: created.id,
+		details: {
+			boxId,
+			kind: input.kind,
+			start: input.start.toISOString(),
+			end: input.end.toISOString(),
+			cancelledBookingIds
+		}
+	});
+	return { outageId: created.id, cancelledBookingIds };
 }
 
 /** Moves the expected end. A later end cancels what the longer outage now overlaps. */
@@ -200,22 +212,25 @@ export async function extendOutage(actor: Actor, outageId: number, end: Date, no
 /** Ends an outage now: the box is back in service. Cancelled bookings stay cancelled. */
 export async function endOutage(actor: Actor, outageId: number, now = new Date()) {
 	if (!hasRole(actor.role, 'manager')) throw forbidden('Only a manager can end an outage.');
-	await db.transaction(async (tx) => {
-		const [current] = await tx.select().from(outages).where(eq(outages.id, outageId)).for('update');
-		if (!current) throw notFound('The outage');
-		if (current.endAt <= now) throw new ServiceError(409, 'This outage has already ended.');
-		const endAt = current.startAt > now ? current.startAt : now;
-		await tx
-			.update(outages)
-			.set({ endAt, sequence: sql`${outages.sequence} + 1` })
-			.where(eq(outages.id, outageId));
-		await audit(tx, {
-			actorId: actor.id,
-			action: 'outage.ended',
-			entity: 'outage',
-			entityId: outageId,
-			details: { endAt: endAt.toISOString() }
-		});
+	await db.transaction((tx) => closeOutage(tx, actor, outageId, now));
+}
+
+/** Ends an outage inside the caller's transaction (a completed glove change does this). */
+export async function closeOutage(tx: Transaction, actor: Actor, outageId: number, now: Date) {
+	const [current] = await tx.select().from(outages).where(eq(outages.id, outageId)).for('update');
+	if (!current) throw notFound('The outage');
+	if (current.endAt <= now) throw new ServiceError(409, 'This outage has already ended.');
+	const endAt = current.startAt > now ? current.startAt : now;
+	await tx
+		.update(outages)
+		.set({ endAt, sequence: sql`${outages.sequence} + 1` })
+		.where(eq(outages.id, outageId));
+	await audit(tx, {
+		actorId: actor.id,
+		action: 'outage.ended',
+		entity: 'outage',
+		entityId: outageId,
+		details: { endAt: endAt.toISOString() }
 	});
 }
 

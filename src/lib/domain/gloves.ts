@@ -1,0 +1,78 @@
+export const gloveMaterials = [
+	'butyl',
+	'neoprene',
+	'csm',
+	'polyurethane',
+	'nitrile',
+	'other'
+] as const;
+export type GloveMaterial = (typeof gloveMaterials)[number];
+export const materialLabel: Record<GloveMaterial, string> = {
+	butyl: 'Butyl',
+	neoprene: 'Neoprene',
+	csm: 'Chlorosulfonated polyethylene',
+	polyurethane: 'Polyurethane',
+	nitrile: 'Nitrile',
+	other: 'Other'
+};
+
+export const gloveHands = ['left', 'right', 'ambidextrous'] as const;
+export type GloveHand = (typeof gloveHands)[number];
+
+export const damageLocations = [
+	'fingertip',
+	'knuckle',
+	'palm',
+	'back_of_hand',
+	'forearm',
+	'cuff'
+] as const;
+export type DamageLocation = (typeof damageLocations)[number];
+export const locationLabel: Record<DamageLocation, string> = {
+	fingertip: 'Fingertip',
+	knuckle: 'Knuckle',
+	palm: 'Palm',
+	back_of_hand: 'Back of hand',
+	forearm: 'Forearm',
+	cuff: 'Cuff at the port'
+};
+
+/**
+ * A hole of 10 mm or more is treated as a catastrophic failure (common practice puts the
+ * line at about 1–2 cm; Boxwright takes the cautious end).
+ */
+export const CATASTROPHIC_HOLE_MM = 10;
+
+export function isCatastrophic(holeSizeMm: number): boolean {
+	return holeSizeMm >= CATASTROPHIC_HOLE_MM;
+}
+
+/** Turning a glove inside out changes its hand. */
+export function effectiveHand(hand: GloveHand, turnedInsideOut: boolean): GloveHand {
+	if (!turnedInsideOut || hand === 'ambidextrous') return hand;
+	return hand === 'left' ? 'right' : 'left';
+}
+
+/** A warning when the glove's (effective) hand does not suit the port's side, else null. */
+export function handWarning(
+	portHand: 'left' | 'right' | null,
+	hand: GloveHand,
+	turnedInsideOut: boolean
+): string | null {
+	const worn = effectiveHand(hand, turnedInsideOut);
+	if (!portHand || worn === 'ambidextrous' || worn === portHand) return null;
+	return `This port is on the ${portHand}, but the glove as fitted is a ${worn}-hand glove${turnedInsideOut ? ' (turned inside out)' : ''}.`;
+}
+
+/** The steps of a glove change, in order. `flush_cycle` is done once per cycle. */
+export const gloveChangeSteps = [
+	{ key: 'port_sealed', label: 'Port sealed with the port cover and the seal checked' },
+	{ key: 'orings_off', label: 'O-rings off' },
+	{ key: 'old_glove_removed', label: 'Old glove removed and bagged' },
+	{ key: 'new_glove_fitted', label: 'New glove fitted (material, size, thickness, hand)' },
+	{ key: 'flush_cycle', label: 'Air squeezed out, glove refilled with box gas (one cycle)' },
+	{ key: 'orings_on', label: 'O-rings back on' },
+	{ key: 'purge_started', label: 'Purge started' },
+	{ key: 'cover_removed', label: 'Port cover removed' }
+] as const;
+export type GloveChangeStepKey = (typeof gloveChangeSteps)[number]['key'];

@@ -1,0 +1,344 @@
+import { and, desc, eq, inArray, isNull } from 'drizzle-orm';
+import { handForPosition } from '$lib/domain/boxes';
+import { MIN_FLUSH_CYCLES, flushEstimate } from '$lib/domain/flush';
+import {
+	gloveChangeSteps,
+	handWarning,
+	isCatastrophic,
+	type DamageLocation,
+	type GloveChangeStepKey
+} from '$lib/domain/gloves';
+import { hasRole } from '$lib/domain/roles';
+import { db } from '../db';
+import {
+	bookings,
+	boxes,
+	boxPorts,
+	gloveChanges,
+	gloveInspections,
+	gloves,
+	outages,
+	users,
+	type GloveChangeStep,
+	type NewGloveSpec
+} from '../db/schema';
+import type { Actor } from './accounts';
+import { audit } from './audit';
+import { forbidden, notFound, ServiceError } from './errors';
+import { closeOutage, openOutage } from './outages';
+
+/** The glove on each of a box's ports now, with its last inspection. */
+export async function glovesOfBox(boxId: number) {
+	const ports = await db
+		.select()
+		.from(boxPorts)
+		.where(eq(boxPorts.boxId, boxId))
+		.orderBy(boxPorts.sortOrder);
+	if (!ports.length) return [];
+	const current = await db
+		.select()
+		.from(gloves)
+		.where(
+			and(
+				inArray(
+					gloves.portId,
+					ports.map((p) => p.id)
+				),
+				isNull(gloves.removedAt)
+			)
+		);
+	const inspections = current.length
+		? await db
+				.select()
+				.from(gloveInspections)
+				.where(
+					inArray(
+						gloveInspections.gloveId,
+						current.map((g) => g.id)
+					)
+				)
+				.orderBy(desc(gloveInspections.at))
+		: [];
+	const open = await db
+		.select({ id: gloveChanges.id, portId: gloveChanges.portId })
+		.from(gloveChanges)
+		.where(
+			and(
+				inArray(
+					gloveChanges.portId,
+					ports.map((p) => p.id)
+				),
+				isNull(gloveChanges.completedAt)
+			)
+		);
+	return ports.map((port) => {
+		const glove = current.find((g) => g.portId === port.id) ?? null;
+		const history = glove ? inspections.filter((i) => i.gloveId === glove.id) : [];
+		return {
+			port,
+			glove,
+			lastInspection: history[0] ?? null,
+			damaged: history.some((i) => i.damaged && i.action !== 'replaced'),
+			openChangeId: open.find((c) => c.portId === port.id)?.id ?? null
+		};
+	});
+}
+
+export type DamageReport = {
+	gloveId: number;
+	location: DamageLocation;
+	hand: 'left' | 'right';
+	holeSizeMm: number;
+	notes?: string;
+	photoKey?: string;
+};
+
+/** Any member may report damage; the answer says whether it is catastrophic. */
+export async function reportDamage(actor: Actor, input: DamageReport, now = new Date()) {
+	const [glove] = await db.select().from(gloves).where(eq(gloves.id, input.gloveId));
+	if (!glove || glove.removedAt) throw notFound('The glove');
+	const catastrophic = isCatastrophic(input.holeSizeMm);
+	const [created] = await db.transaction(async (tx) => {
+		const row = await tx
+			.insert(gloveInspections)
+			.values({
+				gloveId: glove.id,
+				at: now,
+				byUserId: actor.id,
+				damaged: true,
+				location: input.location,
+				hand: input.hand,
+				holeSizeMm: input.holeSizeMm,
+				action: catastrophic ? 'none' : 'change_scheduled',
+				notes: input.notes || null,
+				photoKey: input.photoKey ?? null
+			})
+			.$returningId();
+		await audit(tx, {
+			actorId: actor.id,
+			action: 'glove.damage_reported',
+			entity: 'glove',
+			entityId: glove.id,
+			details: { ...input, catastrophic }
+		});
+		return row;
+	});
+	return { inspectionId: created.id, catastrophic, portId: glove.portId };
+}
+
+/** Starts a guided glove change on a port: an outage opens at once (default two hours). */
+export async function startGloveChange(
+	actor: Actor,
+	portId: number,
+	expectedEnd?: Date,
+	now = new Date()
+) {
+	if (!hasRole(actor.role, 'manager')) throw forbidden('Only a manager can run a glove change.');
+	const [port] = await db
+		.select({ id: boxPorts.id, boxId: boxPorts.boxId, position: boxPorts.position })
+		.from(boxPorts)
+		.where(eq(boxPorts.id, portId));
+	if (!port) throw notFound('The port');
+	const [glove] = await db
+		.select()
+		.from(gloves)
+		.where(and(eq(gloves.portId, portId), isNull(gloves.removedAt)));
+	if (!glove)
+		throw new ServiceError(409, 'This port has no glove recorded, so there is nothing to change.');
+	const [open] = await db
+		.select({ id: gloveChanges.id })
+		.from(gloveChanges)
+		.where(and(eq(gloveChanges.portId, portId), isNull(gloveChanges.completedAt)));
+	if (open)
+		throw new ServiceError(409, 'A glove change on this port is already under way.', {
+			changeId: open.id
+		});
+	const end = expectedEnd ?? new Date(now.getTime() + 2 * 3_600_000);
+	if (end <= now)
+		throw new ServiceError(400, 'The expected end must be in the future.', {
+			fields: { end: 'The expected end must be in the future.' }
+		});
+
+	return db.transaction(async (tx) => {
+		const { outageId, cancelledBookingIds } = await openOutage(
+			tx,
+			actor,
+			port.boxId,
+			{
+				start: now,
+				end,
+				kind: 'glove_change',
+				reason: `Glove change on the ${port.position} port`
+			},
+			now
+		);
+		const [created] = await tx
+			.insert(gloveChanges)
+			.values({ outageId, portId, oldGloveId: glove.id, startedBy: actor.id, startedAt: now })
+			.$returningId();
+		await audit(tx, {
+			actorId: actor.id,
+			action: 'glove_change.started',
+			entity: 'glove_change',
+			entityId: created.id,
+			details: { portId, outageId }
+		});
+		return { changeId: created.id, outageId, cancelledBookingIds };
+	});
+}
+
+export async function getGloveChange(id: number) {
+	const [change] = await db.select().from(gloveChanges).where(eq(gloveChanges.id, id));
+	if (!change) throw notFound('The glove change');
+	const [port] = await db.select().from(boxPorts).where(eq(boxPorts.id, change.portId));
+	const [box] = await db
+		.select({ id: boxes.id, name: boxes.name, gas: boxes.gas, volumeL: boxes.volumeL })
+		.from(boxes)
+		.where(eq(boxes.id, port.boxId));
+	const [outage] = await db.select().from(outages).where(eq(outages.id, change.outageId));
+	const cancelled = await db
+		.select({
+			id: bookings.id,
+			startAt: bookings.startAt,
+			endAt: bookings.endAt,
+			userName: users.name
+		})
+		.from(bookings)
+		.innerJoin(users, eq(users.id, bookings.userId))
+		.where(
+			and(
+				eq(bookings.boxId, box.id),
+				eq(bookings.cancelCause, 'outage'),
+				eq(bookings.cancelReason, outage.reason)
+			)
+		);
+	const [oldGlove] = change.oldGloveId
+		? await db.select().from(gloves).where(eq(gloves.id, change.oldGloveId))
+		: [null];
+	const spec = change.newGlove;
+	return {
+		change,
+		port,
+		box,
+		outage,
+		cancelled: cancelled.filter((b) => b.endAt > outage.startAt && b.startAt < outage.endAt),
+		oldGlove,
+		handWarning: spec
+			? handWarning(handForPosition(port.position), spec.hand, spec.turnedInsideOut)
+			: null
+	};
+}
+
+/** The flush estimate after the cycles done so far, for a glove of about 2 L (common practice). */
+export function flushAfter(
+	boxVolumeL: number,
+	cycles: number,
+	gloveVolumeL = 2,
+	residualVolumeL = 0.2
+) {
+	return flushEstimate({ boxVolumeL, gloveVolumeL, residualVolumeL, cycles });
+}
+
+export async function recordStep(
+	actor: Actor,
+	changeId: number,
+	key: GloveChangeStepKey,
+	options: { detail?: string; newGlove?: NewGloveSpec } = {},
+	now = new Date()
+) {
+	if (!hasRole(actor.role, 'manager')) throw forbidden('Only a manager can run a glove change.');
+	if (!gloveChangeSteps.some((s) => s.key === key)) throw new ServiceError(400, 'Unknown step.');
+	if (key === 'new_glove_fitted' && !options.newGlove) {
+		throw new ServiceError(400, 'Record the new glove’s material, size, thickness and hand.');
+	}
+	const [who] = await db.select({ name: users.name }).from(users).where(eq(users.id, actor.id));
+	await db.transaction(async (tx) => {
+		const [change] = await tx
+			.select()
+			.from(gloveChanges)
+			.where(eq(gloveChanges.id, changeId))
+			.for('update');
+		if (!change) throw notFound('The glove change');
+		if (change.completedAt) throw new ServiceError(409, 'This glove change is complete.');
+		const step: GloveChangeStep = {
+			key,
+			at: now.toISOString(),
+			byId: actor.id,
+			byName: who?.name ?? '',
+			detail: options.detail
+		};
+		await tx
+			.update(gloveChanges)
+			.set({
+				steps: [...change.steps, step],
+				flushCycles: key === 'flush_cycle' ? change.flushCycles + 1 : change.flushCycles,
+				...(options.newGlove ? { newGlove: options.newGlove } : {})
+			})
+			.where(eq(gloveChanges.id, changeId));
+	});
+}
+
+/**
+ * Completes the change: the new glove goes on the port, the old one is retired and the
+ * outage ends. Fewer than three flush cycles needs a manager's written override.
+ */
+export async function completeGloveChange(
+	actor: Actor,
+	changeId: number,
+	overrideNote?: string,
+	now = new Date()
+) {
+	if (!hasRole(actor.role, 'manager'))
+		throw forbidden('Only a manager can complete a glove change.');
+	return db.transaction(async (tx) => {
+		const [change] = await tx
+			.select()
+			.from(gloveChanges)
+			.where(eq(gloveChanges.id, changeId))
+			.for('update');
+		if (!change) throw notFound('The glove change');
+		if (change.completedAt) throw new ServiceError(409, 'This glove change is already complete.');
+		if (!change.newGlove)
+			throw new ServiceError(
+				422,
+				'Record the new glove (material, size, thickness, hand) before completing.'
+			);
+		const note = overrideNote?.trim();
+		if (change.flushCycles < MIN_FLUSH_CYCLES && !note) {
+			const message = `Only ${change.flushCycles} flush cycle${change.flushCycles === 1 ? '' : 's'} recorded; at least ${MIN_FLUSH_CYCLES} are needed, or a written override.`;
+			throw new ServiceError(422, message, { fields: { overrideNote: message } });
+		}
+		if (change.oldGloveId) {
+			await tx
+				.update(gloves)
+				.set({ removedAt: now, removedReason: 'Replaced in a glove change' })
+				.where(eq(gloves.id, change.oldGloveId));
+		}
+		const [fitted] = await tx
+			.insert(gloves)
+			.values({ portId: change.portId, ...change.newGlove, installedAt: now })
+			.$returningId();
+		await tx
+			.update(gloveChanges)
+			.set({
+				newGloveId: fitted.id,
+				completedAt: now,
+				completedBy: actor.id,
+				overrideNote: note || null
+			})
+			.where(eq(gloveChanges.id, changeId));
+		const [outage] = await tx
+			.select({ endAt: outages.endAt })
+			.from(outages)
+			.where(eq(outages.id, change.outageId));
+		if (outage && outage.endAt > now) await closeOutage(tx, actor, change.outageId, now);
+		await audit(tx, {
+			actorId: actor.id,
+			action: 'glove_change.completed',
+			entity: 'glove_change',
+			entityId: changeId,
+			details: { newGloveId: fitted.id, flushCycles: change.flushCycles, override: note || null }
+		});
+		return { newGloveId: fitted.id };
+	});
+}
