@@ -288,3 +288,67 @@ describe('changing and ending an outage', () => {
 		);
 	});
 });
+
+describe('rebooking after an outage', () => {
+	it('the message and the bookings page offer free slots of the same length, each bookable at once', async () => {
+		const boxId = await makeBox();
+		const member = await makeUser('member');
+		const client = await signedIn(member);
+		const times = slot(1, 9, 90);
+		const made = await client.post('/api/bookings', { boxId, ...times, purpose: 'Cell assembly' });
+		expect(made.status).toBe(201);
+		const { booking } = await made.json();
+
+		const manager = await signedIn(await makeUser('manager'));
+		const outageEnd = slot(1, 12, 0).start;
+		const r = await manager.post(`/api/boxes/${boxId}/outages`, {
+			start: slot(1, 8, 0).start,
+			end: outageEnd,
+			kind: 'leak',
+			reason: 'Leak test after a glove change'
+		});
+		expect((await r.json()).cancelledBookingIds).toEqual([booking.id]);
+
+		const [queued] = await testDb()
+			.select()
+			.from(outbox)
+			.where(eq(outbox.dedupeKey, `booking:${booking.id}:cancelled:1`));
+		expect(queued.textBody).toContain('Free slots of the same length you could take instead:');
+
+		const page = await (await client.get('/bookings')).text();
+		expect(page).toContain('was cancelled for upkeep');
+		const offer =
+			/name="boxId" value="(\d+)"[^]*?name="start" value="([^"]+)"[^]*?name="end" value="([^"]+)"/.exec(
+				page
+			);
+		expect(offer).not.toBeNull();
+		const [, offerBox, start, end] = offer!;
+		expect(new Date(end).getTime() - new Date(start).getTime()).toBe(90 * 60_000);
+		expect(new Date(start).getTime()).toBeGreaterThanOrEqual(Date.now());
+
+		const rebooked = await client.form('/bookings?/rebook', {
+			fromBookingId: booking.id,
+			boxId: offerBox,
+			start,
+			end
+		});
+		expect(rebooked.status).toBe(200);
+		const mine = await testDb()
+			.select()
+			.from(bookings)
+			.where(and(eq(bookings.userId, member.id), eq(bookings.status, 'confirmed')));
+		expect(mine).toHaveLength(1);
+		expect(mine[0]).toMatchObject({ purpose: 'Cell assembly', boxId: Number(offerBox) });
+		// The same offer again now collides with the booking just made.
+		expect(
+			(
+				await client.form('/bookings?/rebook', {
+					fromBookingId: booking.id,
+					boxId: offerBox,
+					start,
+					end
+				})
+			).status
+		).toBe(409);
+	});
+});

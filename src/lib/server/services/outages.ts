@@ -7,6 +7,7 @@ import { bookingCancelled } from '../mail/messages';
 import { enqueue } from '../mail/outbox';
 import type { Actor } from './accounts';
 import { audit } from './audit';
+import { alternativeFinder } from './alternatives';
 import { withRetry } from './bookings';
 import { forbidden, notFound, ServiceError } from './errors';
 
@@ -60,8 +61,11 @@ async function cancelOverlapping(
 			sequence: sql`${bookings.sequence} + 1`
 		})
 		.where(inArray(bookings.id, ids));
+	const alternativesFor = await alternativeFinder(tx, [...new Set(hit.map((b) => b.userId))], now);
 	for (const b of hit) {
 		const sequence = b.sequence + 1;
+		const lengthMin = Math.round((b.endAt.getTime() - b.startAt.getTime()) / 60_000);
+		const alternatives = alternativesFor(b.userId, lengthMin, box.id);
 		const message = bookingCancelled(
 			{
 				id: b.id,
@@ -74,7 +78,8 @@ async function cancelOverlapping(
 				updatedAt: now
 			},
 			{ name: b.name },
-			reason
+			reason,
+			alternatives.map((a) => ({ start: a.start, end: a.end, boxName: a.boxName }))
 		);
 		await enqueue(
 			tx,
