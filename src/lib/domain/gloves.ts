@@ -76,3 +76,22 @@ export const gloveChangeSteps = [
 	{ key: 'cover_removed', label: 'Port cover removed' }
 ] as const;
 export type GloveChangeStepKey = (typeof gloveChangeSteps)[number]['key'];
+
+/** Gloves are replaced about yearly (common practice); from 11 months one is due. */
+export const GLOVE_DUE_MONTHS = 11;
+
+export type GloveState = 'sound' | 'due' | 'damaged' | 'sealed' | 'none';
+
+/** The state a port's circle shows on the box face. */
+export function gloveState(p: {
+	installedAt: Date | null;
+	damaged: boolean;
+	changeUnderWay: boolean;
+	now?: Date;
+}): GloveState {
+	if (p.changeUnderWay) return 'sealed';
+	if (!p.installedAt) return 'none';
+	if (p.damaged) return 'damaged';
+	const months = ((p.now ?? new Date()).getTime() - p.installedAt.getTime()) / (30.44 * 86_400_000);
+	return months >= GLOVE_DUE_MONTHS ? 'due' : 'sound';
+}

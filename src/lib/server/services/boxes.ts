@@ -1,5 +1,6 @@
-import { and, asc, desc, eq, gt, inArray, lte, sql } from 'drizzle-orm';
+import { and, asc, desc, eq, gt, inArray, isNull, lte, sql } from 'drizzle-orm';
 import { boxCondition, type BoxCondition } from '$lib/domain/boxes';
+import { gloveState, type GloveState } from '$lib/domain/gloves';
 import type { BoxInput } from '$lib/validation/boxes';
 import { db, type Transaction } from '../db';
 import {
@@ -7,6 +8,9 @@ import {
 	boxes,
 	boxPorts,
 	boxRequiredModules,
+	gloveChanges,
+	gloveInspections,
+	gloves,
 	outages,
 	trainingModules,
 	type Box
@@ -24,7 +28,7 @@ export type BoxSummary = {
 	condition: BoxCondition;
 	status: Box['status'];
 	atmosphereState: Box['atmosphereState'];
-	ports: { id: number; position: string; diameterMm: number }[];
+	ports: { id: number; position: string; diameterMm: number; gloveState: GloveState }[];
 	requiredModules: { id: number; name: string }[];
 	latestReading: { at: Date; o2Ppm: number; h2oPpm: number } | null;
 	currentOutage: { id: number; endAt: Date; reason: string; kind: string } | null;
@@ -66,6 +70,47 @@ async function summarise(rows: Box[], now = new Date()): Promise<BoxSummary[]> {
 				sql`(${atmosphereReadings.boxId}, ${atmosphereReadings.at}) IN (SELECT box_id, MAX(at) FROM atmosphere_readings WHERE box_id IN (${sql.join(ids, sql`, `)}) GROUP BY box_id)`
 			)
 	]);
+	const portIds = ports.map((p) => p.id);
+	const [fitted, openChanges] = portIds.length
+		? await Promise.all([
+				db
+					.select({ id: gloves.id, portId: gloves.portId, installedAt: gloves.installedAt })
+					.from(gloves)
+					.where(and(inArray(gloves.portId, portIds), isNull(gloves.removedAt))),
+				db
+					.select({ portId: gloveChanges.portId })
+					.from(gloveChanges)
+					.where(and(inArray(gloveChanges.portId, portIds), isNull(gloveChanges.completedAt)))
+			])
+		: [[], []];
+	// A damage report stands until the glove is replaced (a new glove row).
+	const damagedGloves = fitted.length
+		? new Set(
+				(
+					await db
+						.select({ gloveId: gloveInspections.gloveId })
+						.from(gloveInspections)
+						.where(
+							and(
+								inArray(
+									gloveInspections.gloveId,
+									fitted.map((g) => g.id)
+								),
+								eq(gloveInspections.damaged, true)
+							)
+						)
+				).map((r) => r.gloveId)
+			)
+		: new Set<number>();
+	const stateOf = (portId: number) => {
+		const glove = fitted.find((g) => g.portId === portId);
+		return gloveState({
+			installedAt: glove?.installedAt ?? null,
+			damaged: glove ? damagedGloves.has(glove.id) : false,
+			changeUnderWay: openChanges.some((c) => c.portId === portId),
+			now
+		});
+	};
 	return rows.map((box) => {
 		const outage = current.find((o) => o.boxId === box.id) ?? null;
 		const reading = latest.find((r) => r.boxId === box.id) ?? null;
@@ -80,7 +125,12 @@ async function summarise(rows: Box[], now = new Date()): Promise<BoxSummary[]> {
 			condition: boxCondition(box.status, box.atmosphereState, outage !== null),
 			ports: ports
 				.filter((p) => p.boxId === box.id)
-				.map((p) => ({ id: p.id, position: p.position, diameterMm: p.diameterMm })),
+				.map((p) => ({
+					id: p.id,
+					position: p.position,
+					diameterMm: p.diameterMm,
+					gloveState: stateOf(p.id)
+				})),
 			requiredModules: required
 				.filter((r) => r.boxId === box.id)
 				.map((r) => ({ id: r.id, name: r.name })),

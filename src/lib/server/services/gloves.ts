@@ -342,3 +342,33 @@ export async function completeGloveChange(
 		return { newGloveId: fitted.id };
 	});
 }
+
+/** Every glove the box's ports have had, newest first, with all their inspections. */
+export async function gloveHistory(boxId: number) {
+	const rows = await db
+		.select({ glove: gloves, position: boxPorts.position })
+		.from(gloves)
+		.innerJoin(boxPorts, eq(boxPorts.id, gloves.portId))
+		.where(eq(boxPorts.boxId, boxId))
+		.orderBy(desc(gloves.installedAt));
+	const inspections = rows.length
+		? await db
+				.select({ inspection: gloveInspections, byName: users.name })
+				.from(gloveInspections)
+				.leftJoin(users, eq(users.id, gloveInspections.byUserId))
+				.where(
+					inArray(
+						gloveInspections.gloveId,
+						rows.map((r) => r.glove.id)
+					)
+				)
+				.orderBy(desc(gloveInspections.at))
+		: [];
+	return rows.map((r) => ({
+		...r.glove,
+		position: r.position,
+		inspections: inspections
+			.filter((i) => i.inspection.gloveId === r.glove.id)
+			.map((i) => ({ ...i.inspection, byName: i.byName }))
+	}));
+}

@@ -5,14 +5,15 @@ import { fromLocal } from '$lib/domain/time';
 import { config } from '$lib/server/config';
 import { requireRole, requireUser } from '$lib/server/guard';
 import { endOutage, extendOutage, createOutage } from '$lib/server/services/outages';
-import { glovesOfBox, startGloveChange } from '$lib/server/services/gloves';
+import { gloveHistory, glovesOfBox, startGloveChange } from '$lib/server/services/gloves';
+import { hasRole } from '$lib/domain/roles';
 import { idParam } from '$lib/server/params';
 import { boxOutages, getBox } from '$lib/server/services/boxes';
 import { attempt } from '$lib/server/services/errors';
 import type { Actions, PageServerLoad } from './$types';
 
 export const load: PageServerLoad = async (event) => {
-	requireUser(event);
+	const user = requireUser(event);
 	const id = idParam(event.params.id, 'The box');
 	const found = await attempt(() => getBox(id));
 	if (!found.ok) error(404, { message: 'That box was not found.', code: 'not_found' });
@@ -40,6 +41,7 @@ export const load: PageServerLoad = async (event) => {
 		description: box.description,
 		outages: await boxOutages(id),
 		gloves: await glovesOfBox(id),
+		gloveHistory: hasRole(user.role, 'manager') ? await gloveHistory(id) : [],
 		outageDefaults: outageDefaults()
 	};
 };
