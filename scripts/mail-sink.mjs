@@ -14,17 +14,23 @@ if (!dir) {
 }
 mkdirSync(dir, { recursive: true });
 
+function pausedError() {
+	if (!existsSync(join(dir, 'paused'))) return undefined;
+	return Object.assign(new Error('Mail sink paused'), { responseCode: 421 });
+}
+
 const server = new SMTPServer({
 	authOptional: true,
 	disabledCommands: ['STARTTLS', 'AUTH'],
 	banner: 'Boxwright local mail sink',
 	size: 25 * 1024 * 1024,
+	// Checked per connection and per message, so connections a client keeps open are
+	// refused too.
 	onConnect(_session, callback) {
-		if (existsSync(join(dir, 'paused'))) {
-			const err = Object.assign(new Error('Mail sink paused'), { responseCode: 421 });
-			return callback(err);
-		}
-		callback();
+		callback(pausedError());
+	},
+	onMailFrom(_address, _session, callback) {
+		callback(pausedError());
 	},
 	onData(stream, _session, callback) {
 		const chunks = [];

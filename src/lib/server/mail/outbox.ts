@@ -41,3 +41,45 @@ export async function enqueue(
 		});
 	}
 }
+
+export type Outgoing = {
+	to: Recipient;
+	message: Message;
+	dedupeKey: string;
+	inApp?: { title: string; body: string; link?: string };
+};
+
+/** Many messages in two multi-row inserts (an outage over a thousand bookings). */
+export async function enqueueMany(tx: Database | Transaction, items: Outgoing[]) {
+	for (let i = 0; i < items.length; i += 500) {
+		const chunk = items.slice(i, i + 500);
+		await tx
+			.insert(outbox)
+			.ignore()
+			.values(
+				chunk.map(({ to, message, dedupeKey }) => ({
+					recipientId: to.id,
+					toAddress: to.email,
+					kind: message.kind,
+					subject: message.subject,
+					textBody: message.text,
+					htmlBody: message.html,
+					icsMethod: message.icsMethod ?? null,
+					icsBody: message.ics ?? null,
+					dedupeKey
+				}))
+			);
+		const notices = chunk.filter((c) => c.inApp);
+		if (notices.length) {
+			await tx.insert(notifications).values(
+				notices.map(({ to, message, inApp }) => ({
+					userId: to.id,
+					kind: message.kind,
+					title: inApp!.title,
+					body: inApp!.body,
+					link: inApp!.link ?? null
+				}))
+			);
+		}
+	}
+}

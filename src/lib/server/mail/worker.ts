@@ -23,6 +23,9 @@ function transport(): Transporter {
 	const url = new URL(process.env.SMTP_URL ?? `smtp://127.0.0.1:${process.env.SMTP_PORT ?? 2525}`);
 	const secure = url.protocol === 'smtps:';
 	transporter ??= nodemailer.createTransport({
+		// A few kept-open connections instead of one per message.
+		pool: true,
+		maxConnections: 4,
 		host: url.hostname,
 		port: Number(url.port || (secure ? 465 : 587)),
 		secure,
@@ -69,42 +72,43 @@ async function claim(limit: number) {
 const from = () => process.env.MAIL_FROM ?? 'Boxwright <boxwright@example.org>';
 
 /** Sends what is due; returns how many were sent and how many failed this round. */
-export async function drainOnce(limit = 20): Promise<{ sent: number; failed: number }> {
+export async function drainOnce(limit = 40): Promise<{ sent: number; failed: number }> {
 	const rows = await claim(limit);
-	let sent = 0;
-	let failed = 0;
-	for (const row of rows) {
-		try {
-			await transport().sendMail({
-				from: from(),
-				to: row.toAddress,
-				subject: row.subject,
-				text: row.textBody,
-				html: row.htmlBody,
-				messageId: `<outbox-${row.id}.${row.dedupeKey.replace(/[^a-zA-Z0-9.-]/g, '-')}@boxwright>`,
-				icalEvent: row.icsBody
-					? { method: row.icsMethod ?? 'REQUEST', content: row.icsBody, filename: 'booking.ics' }
-					: undefined
-			});
-			await db
-				.update(outbox)
-				.set({ status: 'sent', sentAt: new Date(), lastError: null })
-				.where(eq(outbox.id, row.id));
-			sent++;
-		} catch (e) {
-			const giveUp = row.attempts >= MAX_ATTEMPTS;
-			await db
-				.update(outbox)
-				.set({
-					status: giveUp ? 'failed' : 'pending',
-					nextAttemptAt: new Date(Date.now() + backoffMs(row.attempts)),
-					lastError: String((e as Error)?.message ?? e).slice(0, 1000)
-				})
-				.where(eq(outbox.id, row.id));
-			failed++;
-		}
-	}
-	return { sent, failed };
+	const results = await Promise.all(
+		rows.map(async (row) => {
+			try {
+				await transport().sendMail({
+					from: from(),
+					to: row.toAddress,
+					subject: row.subject,
+					text: row.textBody,
+					html: row.htmlBody,
+					messageId: `<outbox-${row.id}.${row.dedupeKey.replace(/[^a-zA-Z0-9.-]/g, '-')}@boxwright>`,
+					icalEvent: row.icsBody
+						? { method: row.icsMethod ?? 'REQUEST', content: row.icsBody, filename: 'booking.ics' }
+						: undefined
+				});
+				await db
+					.update(outbox)
+					.set({ status: 'sent', sentAt: new Date(), lastError: null })
+					.where(eq(outbox.id, row.id));
+				return true;
+			} catch (e) {
+				const giveUp = row.attempts >= MAX_ATTEMPTS;
+				await db
+					.update(outbox)
+					.set({
+						status: giveUp ? 'failed' : 'pending',
+						nextAttemptAt: new Date(Date.now() + backoffMs(row.attempts)),
+						lastError: String((e as Error)?.message ?? e).slice(0, 1000)
+					})
+					.where(eq(outbox.id, row.id));
+				return false;
+			}
+		})
+	);
+	const sent = results.filter(Boolean).length;
+	return { sent, failed: results.length - sent };
 }
 
 let timer: NodeJS.Timeout | undefined;

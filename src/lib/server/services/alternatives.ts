@@ -58,12 +58,17 @@ export async function alternativeFinder(
 	]);
 	const busy = [...busyBookings, ...busyOutages];
 
+	// One person with several cancelled bookings of one length gets the same offers: compute once.
+	const memo = new Map<string, Alternative[]>();
 	/** Up to three slots of `lengthMin` for the user: the same box first, then others they may use. */
 	return function alternativesFor(
 		userId: number,
 		lengthMin: number,
 		sameBoxId: number
 	): Alternative[] {
+		const key = `${userId}:${lengthMin}:${sameBoxId}`;
+		const known = memo.get(key);
+		if (known) return known;
 		const held = new Set(
 			certs.filter((c) => c.userId === userId && c.expiresAt > until).map((c) => c.moduleId)
 		);
@@ -73,7 +78,7 @@ export async function alternativeFinder(
 		usable.sort((a, b) =>
 			a.id === sameBoxId ? -1 : b.id === sameBoxId ? 1 : a.name.localeCompare(b.name)
 		);
-		return findAlternatives({
+		const offers = findAlternatives({
 			lengthMin,
 			from: now,
 			until,
@@ -85,5 +90,7 @@ export async function alternativeFinder(
 				busy: busy.filter((x) => x.boxId === b.id)
 			}))
 		});
+		memo.set(key, offers);
+		return offers;
 	};
 }

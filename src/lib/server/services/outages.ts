@@ -4,7 +4,7 @@ import { hasRole } from '$lib/domain/roles';
 import { db, type Transaction } from '../db';
 import { bookings, boxes, outages, users } from '../db/schema';
 import { bookingCancelled } from '../mail/messages';
-import { enqueue } from '../mail/outbox';
+import { enqueueMany, type Outgoing } from '../mail/outbox';
 import type { Actor } from './accounts';
 import { audit } from './audit';
 import { alternativeFinder } from './alternatives';
@@ -62,7 +62,7 @@ async function cancelOverlapping(
 		})
 		.where(inArray(bookings.id, ids));
 	const alternativesFor = await alternativeFinder(tx, [...new Set(hit.map((b) => b.userId))], now);
-	for (const b of hit) {
+	const outgoing: Outgoing[] = hit.map((b) => {
 		const sequence = b.sequence + 1;
 		const lengthMin = Math.round((b.endAt.getTime() - b.startAt.getTime()) / 60_000);
 		const alternatives = alternativesFor(b.userId, lengthMin, box.id);
@@ -81,18 +81,14 @@ async function cancelOverlapping(
 			reason,
 			alternatives.map((a) => ({ start: a.start, end: a.end, boxName: a.boxName }))
 		);
-		await enqueue(
-			tx,
-			{ id: b.userId, email: b.email },
+		return {
+			to: { id: b.userId, email: b.email },
 			message,
-			`booking:${b.id}:cancelled:${sequence}`,
-			{
-				title: message.subject,
-				body: `Reason: ${reason}`,
-				link: '/bookings'
-			}
-		);
-	}
+			dedupeKey: `booking:${b.id}:cancelled:${sequence}`,
+			inApp: { title: message.subject, body: `Reason: ${reason}`, link: '/bookings' }
+		};
+	});
+	await enqueueMany(tx, outgoing);
 	return ids;
 }
 
