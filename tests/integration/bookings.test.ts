@@ -10,16 +10,10 @@ import {
 	makeUser,
 	testDb
 } from '../support/db';
-import { Client, errorOf } from '../support/http';
+import { Client, errorOf, signedIn } from '../support/http';
 import { slot } from '../support/time';
 
 afterAll(closeTestDb);
-
-async function signedIn(user: { email: string; password: string }) {
-	const client = new Client();
-	await client.signIn(user.email, user.password);
-	return client;
-}
 
 const bookingCount = async (boxId: number) => {
 	const [{ n }] = await testDb()

@@ -9,15 +9,9 @@ import {
 	users
 } from '../../src/lib/server/db/schema';
 import { closeTestDb, fitGloves, makeBox, makeUser, testDb } from '../support/db';
-import { Client, errorOf } from '../support/http';
+import { Client, errorOf, signedIn } from '../support/http';
 
 afterAll(closeTestDb);
-
-async function signedIn(user: { email: string; password: string }) {
-	const client = new Client();
-	await client.signIn(user.email, user.password);
-	return client;
-}
 
 describe('guided glove change', () => {
 	it('opens an outage, logs the steps, needs three cycles or an override, then fits the new glove and ends the outage', async () => {

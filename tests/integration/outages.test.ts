@@ -5,17 +5,11 @@ import { and, eq, inArray, sql } from 'drizzle-orm';
 import ICAL from 'ical.js';
 import { bookings, notifications, outages, outbox } from '../../src/lib/server/db/schema';
 import { closeTestDb, makeBox, makeUser, testDb } from '../support/db';
-import { Client, errorOf } from '../support/http';
+import { errorOf, signedIn } from '../support/http';
 import { sunkMail } from '../support/mail';
 import { slot } from '../support/time';
 
 afterAll(closeTestDb);
-
-async function signedIn(user: { email: string; password: string }) {
-	const client = new Client();
-	await client.signIn(user.email, user.password);
-	return client;
-}
 
 /** `count` confirmed bookings on a fresh box, one hour each, each by a different person. */
 async function boxWithBookings(count: number, daysAhead: number) {

@@ -7,16 +7,10 @@ import {
 	moduleTrainers
 } from '../../src/lib/server/db/schema';
 import { certify, closeTestDb, makeBox, makeModule, makeUser, testDb } from '../support/db';
-import { Client, errorOf } from '../support/http';
+import { errorOf, signedIn } from '../support/http';
 import { facilityTz, slot } from '../support/time';
 
 afterAll(closeTestDb);
-
-async function signedIn(user: { email: string; password: string }) {
-	const client = new Client();
-	await client.signIn(user.email, user.password);
-	return client;
-}
 
 describe('certifications', () => {
 	it('a trainer certifies a module they teach; the expiry follows from its validity', async () => {

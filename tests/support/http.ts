@@ -85,3 +85,10 @@ export async function errorOf(response: Response) {
 	}
 	return body.error;
 }
+
+/** A client signed in as the given user. */
+export async function signedIn(user: { email: string; password: string }) {
+	const client = new Client();
+	await client.signIn(user.email, user.password);
+	return client;
+}

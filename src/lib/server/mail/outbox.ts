@@ -17,29 +17,7 @@ export async function enqueue(
 	dedupeKey: string,
 	inApp?: { title: string; body: string; link?: string }
 ) {
-	await tx
-		.insert(outbox)
-		.ignore()
-		.values({
-			recipientId: to.id,
-			toAddress: to.email,
-			kind: message.kind,
-			subject: message.subject,
-			textBody: message.text,
-			htmlBody: message.html,
-			icsMethod: message.icsMethod ?? null,
-			icsBody: message.ics ?? null,
-			dedupeKey
-		});
-	if (inApp) {
-		await tx.insert(notifications).values({
-			userId: to.id,
-			kind: message.kind,
-			title: inApp.title,
-			body: inApp.body,
-			link: inApp.link ?? null
-		});
-	}
+	await enqueueMany(tx, [{ to, message, dedupeKey, inApp }]);
 }
 
 export type Outgoing = {
