@@ -350,3 +350,39 @@ describe('rebooking after an outage', () => {
 		).toBe(409);
 	});
 });
+
+describe('the outbox page', () => {
+	it('a manager puts a failed message back in the queue; members may not', async () => {
+		const to = await makeUser('member');
+		const [row] = await testDb()
+			.insert(outbox)
+			.values({
+				recipientId: to.id,
+				toAddress: to.email,
+				kind: 'staff_notice',
+				subject: 'Retry me',
+				textBody: 'x',
+				htmlBody: '<p>x</p>',
+				dedupeKey: `test:retry:${to.id}`,
+				status: 'failed',
+				attempts: 8,
+				lastError: '550 mailbox unavailable',
+				// Far ahead, so no worker sends it before the manager retries it.
+				nextAttemptAt: new Date(Date.now() + 86_400_000)
+			})
+			.$returningId();
+		const member = await signedIn(await makeUser('member'));
+		expect((await member.get('/manage/outbox')).status).toBe(403);
+		expect((await member.form('/manage/outbox?/retry', { id: row.id })).status).toBe(403);
+
+		const manager = await signedIn(await makeUser('manager'));
+		const page = await (await manager.get('/manage/outbox?status=failed')).text();
+		expect(page).toContain('Retry me');
+		expect((await manager.form('/manage/outbox?/retry', { id: row.id })).status).toBe(200);
+		await until(
+			async () =>
+				(await testDb().select().from(outbox).where(eq(outbox.id, row.id)))[0].status === 'sent'
+		);
+		expect((await manager.form('/manage/outbox?/retry', { id: row.id })).status).toBe(409);
+	});
+});
