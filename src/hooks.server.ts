@@ -27,7 +27,9 @@ export const handle = sequence(apiErrors, session);
 
 export const handleError: HandleServerError = ({ error, event, status, message }) => {
 	if (status === 404) return { message: 'Not found.', code: 'not_found' };
-	console.error(`[boxwright] ${event.request.method} ${event.url.pathname}:`, error);
+	// Feed paths carry secrets; they never reach a log.
+	const path = event.url.pathname.replace(/^\/ical\/users\/[^/]+/, '/ical/users/[token]');
+	console.error(`[boxwright] ${event.request.method} ${path}:`, error);
 	return {
 		message: status >= 500 ? 'Something went wrong on our side. Please try again.' : message,
 		code: status >= 500 ? 'internal' : undefined

@@ -1,3 +1,4 @@
+import { createHash } from 'node:crypto';
 import { RateLimiterMySQL, RateLimiterRes } from 'rate-limiter-flexible';
 import { building } from '$app/environment';
 import { config } from './config';
@@ -54,4 +55,20 @@ export async function recordFailedSignIn(email: string, address: string) {
 
 export async function clearFailedSignIns(email: string, address: string) {
 	await perAccount.delete(`${email.toLowerCase()}|${address}`);
+}
+
+// Feeds: calendar clients poll every few minutes; these limits only stop abuse.
+const feedPerToken = limiter('feed_token', Number(process.env.FEED_LIMIT_TOKEN ?? 60), 60);
+const feedPerAddress = limiter('feed_address', Number(process.env.FEED_LIMIT_ADDRESS ?? 300), 60);
+
+/** Seconds to wait before the next feed request, or 0. The token is keyed by its hash. */
+export async function feedRetryAfter(token: string, address: string): Promise<number> {
+	const key = createHash('sha256').update(token).digest('hex').slice(0, 32);
+	try {
+		await Promise.all([feedPerToken.consume(key), feedPerAddress.consume(address)]);
+		return 0;
+	} catch (e) {
+		if (e instanceof RateLimiterRes) return Math.max(1, Math.ceil(e.msBeforeNext / 1000));
+		throw e;
+	}
 }

@@ -8,20 +8,42 @@ import {
 	setEmailPreferences
 } from '$lib/server/services/accounts';
 import { attempt } from '$lib/server/services/errors';
+import { listBoxes } from '$lib/server/services/boxes';
+import { feedTokenCreatedAt, feedUrls, newFeedToken } from '$lib/server/services/feeds';
 import { changePasswordSchema } from '$lib/validation/account';
 import { fieldErrors } from '$lib/validation/fields';
 import type { Actions, PageServerLoad } from './$types';
 
 export const load: PageServerLoad = async (event) => {
 	const user = requireUser(event);
-	const [me, prefs] = await Promise.all([profile(user.id), emailPreferences(user.id)]);
+	const [me, prefs, feedSince] = await Promise.all([
+		profile(user.id),
+		emailPreferences(user.id),
+		feedTokenCreatedAt(user.id)
+	]);
 	return {
 		profile: { name: me.name, email: me.email, role: me.role, groups: me.groups, leads: me.leads },
-		prefs
+		prefs,
+		feedSince
 	};
 };
 
 export const actions: Actions = {
+	feed: async (event) => {
+		const user = requireUser(event);
+		const token = await newFeedToken(user.id);
+		const urls = feedUrls(event.url.origin, token);
+		const boxes = await listBoxes();
+		return {
+			feed: {
+				...urls,
+				boxes: boxes.map((b) => ({
+					name: b.name,
+					url: `${event.url.origin}/ical/boxes/${b.id}.ics?token=${token}`
+				}))
+			}
+		};
+	},
 	prefs: async (event) => {
 		const user = requireUser(event);
 		const form = await event.request.formData();

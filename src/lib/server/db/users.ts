@@ -28,6 +28,9 @@ export const users = mysqlTable('users', {
 		.default(sql`CURRENT_TIMESTAMP`),
 	approvedAt: datetime({ mode: 'date' }),
 	approvedBy: int(),
+	/** SHA-256 of the calendar feed token; the token itself is shown once and never kept. */
+	feedTokenHash: varchar({ length: 64 }).unique(),
+	feedTokenCreatedAt: datetime({ mode: 'date' }),
 	/** E-mail when a booking is made or approved; cancellations are always sent. */
 	emailConfirmations: boolean().notNull().default(true)
 });
