@@ -18,7 +18,7 @@ export function feedResponse(request: Request, feed: Feed, filename: string): Re
 			!Number.isNaN(Date.parse(since)) &&
 			Date.parse(since) >= feed.lastModified.getTime();
 	if (unchanged) return new Response(null, { status: 304, headers });
-	return new Response(feed.body, { headers });
+	return new Response(feed.render(), { headers });
 }
 
 /** The one answer for any token that does not open a feed: no hint why. */

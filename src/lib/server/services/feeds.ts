@@ -73,7 +73,8 @@ type FeedEvent = {
 	updatedAt: Date;
 };
 
-export type Feed = { body: string; lastModified: Date; etag: string };
+/** A feed's validators, known from the rows alone; the body is rendered only when sent. */
+export type Feed = { lastModified: Date; etag: string; render: () => string };
 
 /** Builds a calendar in the facility zone, with its VTIMEZONE and refresh hints. */
 export function renderFeed(name: string, events: FeedEvent[], tz = config.facilityTz): string {
@@ -101,11 +102,23 @@ export function renderFeed(name: string, events: FeedEvent[], tz = config.facili
 	return calendar.toString();
 }
 
-function finish(body: string, events: FeedEvent[]): Feed {
+/**
+ * The ETag hashes what the body is made of (each event's UID, SEQUENCE, status, times,
+ * texts and last change, plus the window's day), so a 304 costs a query and no rendering.
+ */
+function finish(name: string, events: FeedEvent[], now: Date): Feed {
 	const lastModified = new Date(Math.max(0, ...events.map((e) => e.updatedAt.getTime())));
 	lastModified.setMilliseconds(0);
-	const etag = `"${createHash('sha256').update(body).digest('base64url').slice(0, 27)}"`;
-	return { body, lastModified, etag };
+	const hash = createHash('sha256').update(
+		`${name}|${config.facilityTz}|${now.toISOString().slice(0, 10)}`
+	);
+	for (const e of events) {
+		hash.update(
+			`|${e.uid}:${e.sequence}:${e.cancelled}:${e.start.getTime()}:${e.end.getTime()}:${e.updatedAt.getTime()}`
+		);
+	}
+	const etag = `"${hash.digest('base64url').slice(0, 27)}"`;
+	return { lastModified, etag, render: () => renderFeed(name, events) };
 }
 
 /** A person's bookings from 30 days back to a year ahead, cancelled ones included. */
@@ -145,7 +158,7 @@ export async function userFeed(userId: number, now = new Date()): Promise<Feed> 
 		cancelled: b.status === 'cancelled',
 		updatedAt: b.updatedAt
 	}));
-	return finish(renderFeed('Boxwright: my box time', events), events);
+	return finish('Boxwright: my box time', events, now);
 }
 
 /** Every booking (booker's name only) and outage on a box, 30 days back to a year ahead. */
@@ -201,5 +214,5 @@ export async function boxFeed(boxId: number, now = new Date()): Promise<Feed | n
 			updatedAt: o.updatedAt
 		}))
 	];
-	return finish(renderFeed(`Boxwright: ${box.name}`, events), events);
+	return finish(`Boxwright: ${box.name}`, events, now);
 }
