@@ -1,6 +1,6 @@
 import { afterAll, describe, expect, it } from 'vitest';
 import { and, eq, sql } from 'drizzle-orm';
-import { auditLog, bookings, outages } from '../../src/lib/server/db/schema';
+import { auditLog, bookings, outages, outbox } from '../../src/lib/server/db/schema';
 import {
 	certifiedMemberAndBox,
 	certify,
@@ -46,6 +46,14 @@ describe('POST /api/bookings', () => {
 				and(eq(auditLog.action, 'booking.created'), eq(auditLog.entityId, String(booking.id)))
 			);
 		expect(entries).toHaveLength(1);
+		// The confirmation, queued with the booking, invites to the booking's own UID.
+		const [mail] = await testDb()
+			.select()
+			.from(outbox)
+			.where(eq(outbox.dedupeKey, `booking:${booking.id}:confirmed:0`));
+		expect(mail.icsMethod).toBe('REQUEST');
+		expect(mail.icsBody).toContain(`UID:booking-${booking.id}@boxwright`);
+		expect(mail.icsBody).toContain('METHOD:REQUEST');
 	});
 
 	it('50 simultaneous requests for the same slot: exactly one 201 and 49 × 409, no 5xx', async () => {
@@ -316,6 +324,11 @@ describe('approval', () => {
 		).toBe(200);
 		const [row] = await testDb().select().from(bookings).where(eq(bookings.id, booking.id));
 		expect(row.status).toBe('confirmed');
+		const [mail] = await testDb()
+			.select()
+			.from(outbox)
+			.where(eq(outbox.dedupeKey, `booking:${booking.id}:confirmed:1`));
+		expect(mail.icsBody).toContain('SEQUENCE:1');
 		const member = await signedIn(await makeUser('member'));
 		expect(
 			(await member.form('/manage/approvals?/approveBooking', { bookingId: booking.id })).status

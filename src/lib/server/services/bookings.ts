@@ -23,6 +23,7 @@ import { audit } from './audit';
 import { forbidden, notFound, ServiceError } from './errors';
 import { bookingConfirmed } from '../mail/messages';
 import { enqueue } from '../mail/outbox';
+import { bookingUid } from '../ical';
 
 const DEADLOCK = new Set(['ER_LOCK_DEADLOCK', 'ER_LOCK_WAIT_TIMEOUT']);
 
@@ -294,6 +295,10 @@ function refusal(reasons: Reason[], status: 409 | 422): ServiceError {
  */
 export async function createBooking(actor: Actor, input: BookingInput, now = new Date()) {
 	const gates = await readGates(actor.id, input.boxId);
+	// Rendered before the box lock is taken; only the booking's id is filled in under it.
+	const draft = gates.person?.emailConfirmations
+		? await draftConfirmation(input, { id: actor.id, ...gates.person })
+		: null;
 	return withRetry(() =>
 		db.transaction(async (tx) => {
 			const { box, result, blockedUntil } = await evaluate(tx, actor.id, input, now, gates);
@@ -324,17 +329,48 @@ export async function createBooking(actor: Actor, input: BookingInput, now = new
 					status: values.status
 				}
 			});
-			if (values.status === 'confirmed' && gates.person?.emailConfirmations) {
-				await queueConfirmation(
+			if (values.status === 'confirmed' && draft) {
+				await enqueue(
 					tx,
-					{ id: actor.id, ...gates.person },
-					{ id: created.id, ...values, sequence: 0 },
-					box
+					{ id: actor.id, email: gates.person!.email },
+					draft.forBooking(created.id),
+					`booking:${created.id}:confirmed:0`
 				);
 			}
 			return { id: created.id, ...values, cancelReason: null, cancelCause: null };
 		})
 	);
+}
+
+/** A confirmation rendered ahead, for a booking whose id is not known yet. */
+async function draftConfirmation(
+	input: BookingInput,
+	person: { id: number; email: string; name: string }
+) {
+	const [box] = await db
+		.select({ name: boxes.name, room: boxes.room })
+		.from(boxes)
+		.where(eq(boxes.id, input.boxId));
+	if (!box) return null;
+	const placeholder = bookingUid(0);
+	const message = bookingConfirmed(
+		{
+			id: 0,
+			startAt: input.start,
+			endAt: input.end,
+			purpose: input.purpose,
+			sequence: 0,
+			boxName: box.name,
+			room: box.room
+		},
+		person
+	);
+	return {
+		forBooking: (id: number) => ({
+			...message,
+			ics: message.ics?.replace(placeholder, bookingUid(id))
+		})
+	};
 }
 
 async function queueConfirmation(
@@ -426,6 +462,22 @@ export async function decideBooking(
 					sequence: sql`${bookings.sequence} + 1`
 				})
 				.where(eq(bookings.id, id));
+			const [person] = await tx
+				.select({
+					id: users.id,
+					email: users.email,
+					name: users.name,
+					emailConfirmations: users.emailConfirmations
+				})
+				.from(users)
+				.where(eq(users.id, booking.userId));
+			const [box] = await tx
+				.select({ name: boxes.name, room: boxes.room })
+				.from(boxes)
+				.where(eq(boxes.id, booking.boxId));
+			if (person?.emailConfirmations && box) {
+				await queueConfirmation(tx, person, { ...booking, sequence: booking.sequence + 1 }, box);
+			}
 		} else {
 			await tx
 				.update(bookings)
