@@ -23,7 +23,6 @@ import { audit } from './audit';
 import { forbidden, notFound, ServiceError } from './errors';
 import { bookingConfirmed } from '../mail/messages';
 import { enqueue } from '../mail/outbox';
-import { bookingUid } from '../ical';
 
 const DEADLOCK = new Set(['ER_LOCK_DEADLOCK', 'ER_LOCK_WAIT_TIMEOUT']);
 
@@ -295,10 +294,6 @@ function refusal(reasons: Reason[], status: 409 | 422): ServiceError {
  */
 export async function createBooking(actor: Actor, input: BookingInput, now = new Date()) {
 	const gates = await readGates(actor.id, input.boxId);
-	// Rendered before the box lock is taken; only the booking's id is filled in under it.
-	const draft = gates.person?.emailConfirmations
-		? await draftConfirmation(input, { id: actor.id, ...gates.person })
-		: null;
 	return withRetry(() =>
 		db.transaction(async (tx) => {
 			const { box, result, blockedUntil } = await evaluate(tx, actor.id, input, now, gates);
@@ -329,48 +324,17 @@ export async function createBooking(actor: Actor, input: BookingInput, now = new
 					status: values.status
 				}
 			});
-			if (values.status === 'confirmed' && draft) {
-				await enqueue(
+			if (values.status === 'confirmed' && gates.person?.emailConfirmations) {
+				await queueConfirmation(
 					tx,
-					{ id: actor.id, email: gates.person!.email },
-					draft.forBooking(created.id),
-					`booking:${created.id}:confirmed:0`
+					{ id: actor.id, ...gates.person },
+					{ id: created.id, ...values, sequence: 0 },
+					box
 				);
 			}
 			return { id: created.id, ...values, cancelReason: null, cancelCause: null };
 		})
 	);
-}
-
-/** A confirmation rendered ahead, for a booking whose id is not known yet. */
-async function draftConfirmation(
-	input: BookingInput,
-	person: { id: number; email: string; name: string }
-) {
-	const [box] = await db
-		.select({ name: boxes.name, room: boxes.room })
-		.from(boxes)
-		.where(eq(boxes.id, input.boxId));
-	if (!box) return null;
-	const placeholder = bookingUid(0);
-	const message = bookingConfirmed(
-		{
-			id: 0,
-			startAt: input.start,
-			endAt: input.end,
-			purpose: input.purpose,
-			sequence: 0,
-			boxName: box.name,
-			room: box.room
-		},
-		person
-	);
-	return {
-		forBooking: (id: number) => ({
-			...message,
-			ics: message.ics?.replace(placeholder, bookingUid(id))
-		})
-	};
 }
 
 async function queueConfirmation(
