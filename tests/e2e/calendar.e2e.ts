@@ -1,9 +1,9 @@
 import { expect, test } from '@playwright/test';
-import { dragSlot, signIn } from './support';
+import { dragSlot, open, signIn } from './support';
 
 test('a member selects a slot on the week view and sees it booked', async ({ page }) => {
 	await signIn(page, 'member@example.org');
-	await page.goto('/calendar?view=week');
+	await open(page, '/calendar?view=week');
 	await expect(page.getByRole('heading', { name: 'Calendar' })).toBeVisible();
 	await page
 		.getByRole('combobox', { name: 'Box', exact: true })
@@ -22,13 +22,13 @@ test('a member selects a slot on the week view and sees it booked', async ({ pag
 	await expect(page.getByRole('status')).toContainText('Booked');
 	await expect(page.locator('.ec-event.bw-mine', { hasText: purpose })).toBeVisible();
 
-	await page.goto('/bookings');
+	await open(page, '/bookings');
 	await expect(page.getByRole('row', { name: new RegExp(purpose) })).toContainText('06:00–07:00');
 });
 
 test('a newcomer tries to book and sees why not', async ({ page }) => {
 	await signIn(page, 'newcomer@example.org');
-	await page.goto('/calendar?view=week');
+	await open(page, '/calendar?view=week');
 	await page
 		.getByRole('combobox', { name: 'Box', exact: true })
 		.first()

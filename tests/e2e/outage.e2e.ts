@@ -1,7 +1,7 @@
 import { expect, test } from '@playwright/test';
 import { DateTime } from 'luxon';
 import { sunkMail } from '../support/mail';
-import { DEMO_PASSWORD, signIn } from './support';
+import { DEMO_PASSWORD, open, signIn } from './support';
 
 const tz = process.env.FACILITY_TZ ?? 'Europe/Berlin';
 
@@ -25,7 +25,7 @@ test('a manager takes a box out of service; the member sees the cancellation and
 	const { booking } = await made.json();
 
 	await signIn(page, 'manager@example.org');
-	await page.goto(`/boxes/${tern.id}`);
+	await open(page, `/boxes/${tern.id}`);
 	await page.getByText('Take the box out of service').click();
 	await page.getByLabel('Start date').fill(day.toISODate()!);
 	await page.getByLabel('Start time').fill('04:30');

@@ -1,8 +1,8 @@
 import { expect, test } from '@playwright/test';
-import { DEMO_PASSWORD } from './support';
+import { DEMO_PASSWORD, open } from './support';
 
 test('a member signs in and sees the dashboard', async ({ page }) => {
-	await page.goto('/');
+	await open(page, '/');
 	await expect(page).toHaveURL(/\/signin/);
 	await page.getByLabel('E-mail').fill('member@example.org');
 	await page.getByLabel('Password').fill(DEMO_PASSWORD);
@@ -22,7 +22,7 @@ test('a member signs in and sees the dashboard', async ({ page }) => {
 });
 
 test('a wrong password shows a message and keeps the e-mail', async ({ page }) => {
-	await page.goto('/signin');
+	await open(page, '/signin');
 	await page.getByLabel('E-mail').fill('member@example.org');
 	await page.getByLabel('Password').fill('not-the-password');
 	await page.getByRole('button', { name: 'Sign in' }).click();
@@ -35,13 +35,14 @@ test('a manager approves a pending registration', async ({ page }) => {
 	const email = `e2e-${Date.now().toString(36)}@test.example`;
 	const name = `Pat Newcomb ${Date.now().toString(36)}`;
 
-	await page.goto('/register');
+	await open(page, '/register');
 	await page.getByLabel('Name').fill(name);
 	await page.getByLabel('E-mail').fill(email);
 	await page.getByLabel('Password').fill('long-enough-password');
 	await page.getByLabel('Research group').selectOption({ label: 'Photoredox Catalysis' });
 	await page.getByRole('button', { name: 'Send registration' }).click();
 	await expect(page.getByRole('status')).toContainText('your registration is in');
+	await page.locator('body[data-hydrated="true"]').waitFor();
 
 	await page.getByLabel('E-mail').fill('manager@example.org');
 	await page.getByLabel('Password').fill(DEMO_PASSWORD);
@@ -58,6 +59,8 @@ test('a manager approves a pending registration', async ({ page }) => {
 	await expect(page.getByRole('row', { name: new RegExp(name) })).toHaveCount(0);
 
 	await page.getByRole('button', { name: 'Sign out' }).click();
+	await page.waitForURL('**/signin');
+	await page.locator('body[data-hydrated="true"]').waitFor();
 	await page.getByLabel('E-mail').fill(email);
 	await page.getByLabel('Password').fill('long-enough-password');
 	await page.getByRole('button', { name: 'Sign in' }).click();

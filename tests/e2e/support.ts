@@ -2,8 +2,14 @@ import type { Page } from '@playwright/test';
 
 export const DEMO_PASSWORD = 'demo-pass-2026';
 
+/** Goes to a page and waits until it is hydrated, so typing is not undone by hydration. */
+export async function open(page: Page, path: string) {
+	await page.goto(path);
+	await page.locator('body[data-hydrated="true"]').waitFor();
+}
+
 export async function signIn(page: Page, email: string, password = DEMO_PASSWORD) {
-	await page.goto('/signin');
+	await open(page, '/signin');
 	await page.getByLabel('E-mail').fill(email);
 	await page.getByLabel('Password').fill(password);
 	await page.getByRole('button', { name: 'Sign in' }).click();
