@@ -1,6 +1,6 @@
 import { config } from '$lib/server/config';
 import { countPendingFor, groupsLedBy } from '$lib/server/services/accounts';
-import { pendingBookings } from '$lib/server/services/bookings';
+import { countPendingBookings } from '$lib/server/services/bookings';
 import { unreadCount } from '$lib/server/services/notifications';
 import type { LayoutServerLoad } from './$types';
 
@@ -16,6 +16,6 @@ export const load: LayoutServerLoad = async ({ locals }) => {
 		unread: await unreadCount(user.id),
 		pendingApprovals: canApprove ? await countPendingFor(user) : 0,
 		pendingBookings:
-			user.role === 'manager' || user.role === 'admin' ? (await pendingBookings()).length : 0
+			user.role === 'manager' || user.role === 'admin' ? await countPendingBookings() : 0
 	};
 };

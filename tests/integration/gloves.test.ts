@@ -63,6 +63,8 @@ describe('guided glove change', () => {
 		});
 		expect(fitted.status).toBe(200);
 		const page = await (await manager.get(changeUrl)).text();
+		// The change's page names the booking its outage cancelled.
+		expect(page).toMatch(/cancelled: Test member/);
 		expect(page).toContain(
 			'This port is on the left, but the glove as fitted is a right-hand glove'
 		);

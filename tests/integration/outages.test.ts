@@ -220,7 +220,7 @@ describe('the outbox and the mail sink', () => {
 	it('with the sink refusing, messages wait; once it is back all arrive, none twice, with two workers', async () => {
 		const pauseFile = join(sinkDir(), 'paused');
 		writeFileSync(pauseFile, 'paused by a test');
-		const { worker } = { worker: await import('../../src/lib/server/mail/worker') };
+		const worker = await import('../../src/lib/server/mail/worker');
 		try {
 			const { boxId, ids, window } = await boxWithBookings(6, 13);
 			const manager = await signedIn(await makeUser('manager'));

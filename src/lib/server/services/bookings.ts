@@ -347,15 +347,6 @@ async function queueConfirmation(
 	await enqueue(tx, person, message, `booking:${b.id}:confirmed:${b.sequence}`);
 }
 
-/** Checks a request without saving it (the form's early answer). */
-export async function previewBooking(actor: Actor, input: BookingInput, now = new Date()) {
-	const gates = await readGates(actor.id, input.boxId);
-	return db.transaction(async (tx) => {
-		const { result } = await evaluate(tx, actor.id, input, now, gates);
-		return { status: refusalStatus(result), reasons: reasonsForClient(result.reasons) };
-	});
-}
-
 export async function getBooking(id: number) {
 	const [row] = await db.select().from(bookings).where(eq(bookings.id, id));
 	return row ?? null;
@@ -485,6 +476,15 @@ export async function pendingBookings() {
 		.innerJoin(users, eq(users.id, bookings.userId))
 		.where(eq(bookings.status, 'pending'))
 		.orderBy(asc(bookings.startAt));
+}
+
+/** How many bookings wait for a manager: the shell's badge, on every page, so a count. */
+export async function countPendingBookings(): Promise<number> {
+	const [row] = await db
+		.select({ n: sql<number>`count(*)` })
+		.from(bookings)
+		.where(eq(bookings.status, 'pending'));
+	return Number(row?.n ?? 0);
 }
 
 export async function bookingsOf(userId: number, now = new Date()) {

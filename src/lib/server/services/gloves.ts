@@ -11,6 +11,7 @@ import {
 import { hasRole } from '$lib/domain/roles';
 import { db } from '../db';
 import {
+	auditLog,
 	bookings,
 	boxes,
 	boxPorts,
@@ -196,22 +197,33 @@ export async function getGloveChange(id: number) {
 		.from(boxes)
 		.where(eq(boxes.id, port.boxId));
 	const [outage] = await db.select().from(outages).where(eq(outages.id, change.outageId));
-	const cancelled = await db
-		.select({
-			id: bookings.id,
-			startAt: bookings.startAt,
-			endAt: bookings.endAt,
-			userName: users.name
-		})
-		.from(bookings)
-		.innerJoin(users, eq(users.id, bookings.userId))
+	// The outage's own audit entries name the bookings it cancelled (creation and any
+	// later extension), so the list is exact, not guessed from reasons or times.
+	const entries = await db
+		.select({ details: auditLog.details })
+		.from(auditLog)
 		.where(
 			and(
-				eq(bookings.boxId, box.id),
-				eq(bookings.cancelCause, 'outage'),
-				eq(bookings.cancelReason, outage.reason)
+				eq(auditLog.entity, 'outage'),
+				eq(auditLog.entityId, String(outage.id)),
+				inArray(auditLog.action, ['outage.created', 'outage.changed'])
 			)
 		);
+	const cancelledIds = entries.flatMap(
+		(e) => (e.details as { cancelledBookingIds?: number[] } | null)?.cancelledBookingIds ?? []
+	);
+	const cancelled = cancelledIds.length
+		? await db
+				.select({
+					id: bookings.id,
+					startAt: bookings.startAt,
+					endAt: bookings.endAt,
+					userName: users.name
+				})
+				.from(bookings)
+				.innerJoin(users, eq(users.id, bookings.userId))
+				.where(inArray(bookings.id, cancelledIds))
+		: [];
 	const [oldGlove] = change.oldGloveId
 		? await db.select().from(gloves).where(eq(gloves.id, change.oldGloveId))
 		: [null];
@@ -221,7 +233,7 @@ export async function getGloveChange(id: number) {
 		port,
 		box,
 		outage,
-		cancelled: cancelled.filter((b) => b.endAt > outage.startAt && b.startAt < outage.endAt),
+		cancelled,
 		oldGlove,
 		handWarning: spec
 			? handWarning(handForPosition(port.position), spec.hand, spec.turnedInsideOut)

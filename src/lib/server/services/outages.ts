@@ -1,4 +1,4 @@
-import { and, desc, eq, gt, inArray, lt, sql } from 'drizzle-orm';
+import { and, eq, gt, inArray, lt, sql } from 'drizzle-orm';
 import type { OutageKind } from '$lib/domain/bookings';
 import { hasRole } from '$lib/domain/roles';
 import { db, type Transaction } from '../db';
@@ -233,13 +233,4 @@ export async function closeOutage(tx: Transaction, actor: Actor, outageId: numbe
 		entityId: outageId,
 		details: { endAt: endAt.toISOString() }
 	});
-}
-
-export async function outagesOf(boxId: number, limit = 20) {
-	return db
-		.select()
-		.from(outages)
-		.where(eq(outages.boxId, boxId))
-		.orderBy(desc(outages.startAt))
-		.limit(limit);
 }
