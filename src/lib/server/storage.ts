@@ -1,15 +1,36 @@
-// Uploaded files. Local disk under BOXWRIGHT_DATA_DIR/uploads by default; the same calls
-// are meant to front an S3-compatible store when one is configured (upkeep issue).
-import { mkdir, readFile, writeFile } from 'node:fs/promises';
+// Uploaded files (damage photos, PDF documents). Local disk under
+// `${BOXWRIGHT_DATA_DIR ?? '.data'}/uploads` by default; any S3-compatible store when S3_BUCKET
+// is set (S3_ENDPOINT, S3_REGION, S3_ACCESS_KEY_ID, S3_SECRET_ACCESS_KEY, S3_FORCE_PATH_STYLE:
+// see .env.example), so several app processes can share the uploads. Settings are read at each
+// call, which lets tests switch backends; the S3 client is made once per set of settings.
+import { mkdir, readFile, rm, writeFile } from 'node:fs/promises';
 import { randomBytes } from 'node:crypto';
 import { dirname, join, resolve } from 'node:path';
-
-const root = () => resolve(process.env.BOXWRIGHT_DATA_DIR ?? '.data', 'uploads');
+import {
+	DeleteObjectCommand,
+	GetObjectCommand,
+	PutObjectCommand,
+	S3Client,
+	S3ServiceException
+} from '@aws-sdk/client-s3';
 
 export const MAX_PHOTO_BYTES = 5 * 1024 * 1024;
+export const MAX_DOCUMENT_BYTES = 20 * 1024 * 1024;
+
+const types: Record<string, string> = {
+	png: 'image/png',
+	jpg: 'image/jpeg',
+	webp: 'image/webp',
+	pdf: 'application/pdf'
+};
+
+// The only keys `put` makes; anything else (`..`, slashes, other extensions) is refused.
+const keyShape = /^[a-z-]+\/[0-9a-f]{32}\.(png|jpg|webp|pdf)$/;
+
+type FileType = { ext: string; type: string };
 
 /** The image type from the file's first bytes, whatever its name says; null if not an image. */
-export function sniffImage(bytes: Uint8Array): { ext: string; type: string } | null {
+export function sniffImage(bytes: Uint8Array): FileType | null {
 	const starts = (...sig: number[]) => sig.every((b, i) => bytes[i] === b);
 	if (starts(0x89, 0x50, 0x4e, 0x47, 0x0d, 0x0a, 0x1a, 0x0a))
 		return { ext: 'png', type: 'image/png' };
@@ -18,6 +39,18 @@ export function sniffImage(bytes: Uint8Array): { ext: string; type: string } | n
 		return { ext: 'webp', type: 'image/webp' };
 	}
 	return null;
+}
+
+/**
+ * `{ ext: 'pdf' }` if the bytes look like a whole PDF, else null: the `%PDF-` header within the
+ * first 1024 bytes and the `%%EOF` marker within the last 1024, the windows Adobe's readers
+ * accept (PDF Reference 1.7, appendix H). A missing `%%EOF` means a truncated upload.
+ */
+export function sniffPdf(bytes: Uint8Array): { ext: 'pdf'; type: 'application/pdf' } | null {
+	const buffer = Buffer.from(bytes.buffer, bytes.byteOffset, bytes.byteLength);
+	if (!buffer.subarray(0, 1024).includes('%PDF-')) return null;
+	if (!buffer.subarray(-1024).includes('%%EOF')) return null;
+	return { ext: 'pdf', type: 'application/pdf' };
 }
 
 export type PhotoCheck =
@@ -31,19 +64,126 @@ export async function checkPhoto(file: File): Promise<PhotoCheck> {
 	return { ok: true, bytes, ext: image.ext };
 }
 
+export type DocumentCheck =
+	{ ok: true; bytes: Uint8Array; ext: 'pdf' } | { ok: false; message: string };
+
+export async function checkDocument(file: File): Promise<DocumentCheck> {
+	if (file.size > MAX_DOCUMENT_BYTES) {
+		return { ok: false, message: 'The document is larger than 20 MB.' };
+	}
+	const bytes = new Uint8Array(await file.arrayBuffer());
+	if (!sniffPdf(bytes)) return { ok: false, message: 'That file is not a PDF.' };
+	return { ok: true, bytes, ext: 'pdf' };
+}
+
+interface Backend {
+	write(key: string, bytes: Uint8Array, type: string): Promise<void>;
+	/** null when there is no such file. */
+	read(key: string): Promise<Uint8Array | null>;
+	/** Succeeds when there is no such file. */
+	delete(key: string): Promise<void>;
+}
+
+function localBackend(): Backend {
+	const root = resolve(process.env.BOXWRIGHT_DATA_DIR ?? '.data', 'uploads');
+	return {
+		async write(key, bytes) {
+			const path = join(root, key);
+			await mkdir(dirname(path), { recursive: true });
+			await writeFile(path, bytes);
+		},
+		async read(key) {
+			try {
+				return await readFile(join(root, key));
+			} catch (err) {
+				if ((err as NodeJS.ErrnoException).code === 'ENOENT') return null;
+				throw err;
+			}
+		},
+		async delete(key) {
+			await rm(join(root, key), { force: true });
+		}
+	};
+}
+
+let s3: { settings: string; client: S3Client } | null = null;
+
+function s3Client(): S3Client {
+	const endpoint = process.env.S3_ENDPOINT || undefined;
+	const pathStyle = process.env.S3_FORCE_PATH_STYLE;
+	const accessKeyId = process.env.S3_ACCESS_KEY_ID;
+	const secretAccessKey = process.env.S3_SECRET_ACCESS_KEY;
+	const options = {
+		region: process.env.S3_REGION || 'us-east-1',
+		endpoint,
+		// MinIO and most self-hosted stores serve buckets as paths, not as subdomains.
+		forcePathStyle: pathStyle ? /^(1|true|yes)$/i.test(pathStyle) : endpoint !== undefined,
+		// Without keys the SDK's own chain applies (AWS_* variables, instance or task roles).
+		credentials: accessKeyId && secretAccessKey ? { accessKeyId, secretAccessKey } : undefined,
+		// Since SDK 3.729 uploads carry a CRC32 by default (a streamed body goes aws-chunked with
+		// a trailer, which s3rver and some older stores save framing and all) and downloads ask
+		// for one: many S3-compatible stores mishandle both, so only when an operation needs it.
+		requestChecksumCalculation: 'WHEN_REQUIRED',
+		responseChecksumValidation: 'WHEN_REQUIRED'
+	} as const;
+	const settings = JSON.stringify(options);
+	if (s3?.settings !== settings) {
+		s3?.client.destroy();
+		s3 = { settings, client: new S3Client(options) };
+	}
+	return s3.client;
+}
+
+function s3Backend(bucket: string): Backend {
+	const client = s3Client();
+	return {
+		async write(key, bytes, type) {
+			await client.send(
+				new PutObjectCommand({ Bucket: bucket, Key: key, Body: bytes, ContentType: type })
+			);
+		},
+		async read(key) {
+			try {
+				const object = await client.send(new GetObjectCommand({ Bucket: bucket, Key: key }));
+				return object.Body ? await object.Body.transformToByteArray() : new Uint8Array();
+			} catch (err) {
+				// Only a missing object is "not found"; a missing bucket is a setup error.
+				if (err instanceof S3ServiceException && err.name === 'NoSuchKey') return null;
+				throw err;
+			}
+		},
+		async delete(key) {
+			await client.send(new DeleteObjectCommand({ Bucket: bucket, Key: key }));
+		}
+	};
+}
+
+function backend(): Backend {
+	const bucket = process.env.S3_BUCKET;
+	return bucket ? s3Backend(bucket) : localBackend();
+}
+
 /** Stores bytes under a fresh random key in `folder`; returns the key. */
 export async function put(folder: string, bytes: Uint8Array, ext: string): Promise<string> {
 	const key = `${folder}/${randomBytes(16).toString('hex')}.${ext}`;
-	const path = join(root(), key);
-	await mkdir(dirname(path), { recursive: true });
-	await writeFile(path, bytes);
+	// A key `get` would refuse is a bug in the caller, not a user's mistake.
+	if (!keyShape.test(key)) throw new Error(`Cannot store a file as ${folder}/….${ext}.`);
+	await backend().write(key, bytes, types[ext]);
 	return key;
 }
 
 /** Reads a stored file; keys are only ever ones `put` made (checked by shape). */
 export async function get(key: string): Promise<{ bytes: Uint8Array; type: string } | null> {
-	if (!/^[a-z-]+\/[0-9a-f]{32}\.(png|jpg|webp)$/.test(key)) return null;
-	const bytes = await readFile(join(root(), key)).catch(() => null);
+	if (!keyShape.test(key)) return null;
+	const bytes = await backend().read(key);
 	if (!bytes) return null;
-	return { bytes, type: sniffImage(bytes)?.type ?? 'application/octet-stream' };
+	// The type comes from the bytes, never from the key or the store's metadata.
+	const found = sniffImage(bytes) ?? sniffPdf(bytes);
+	return { bytes, type: found?.type ?? 'application/octet-stream' };
+}
+
+/** Deletes a stored file; a key that was never stored (or has another shape) is a no-op. */
+export async function remove(key: string): Promise<void> {
+	if (!keyShape.test(key)) return;
+	await backend().delete(key);
 }

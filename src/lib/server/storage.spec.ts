@@ -1,0 +1,244 @@
+import { mkdtemp, readdir, rm } from 'node:fs/promises';
+import { tmpdir } from 'node:os';
+import { join } from 'node:path';
+import {
+	CreateBucketCommand,
+	GetObjectCommand,
+	HeadObjectCommand,
+	S3Client
+} from '@aws-sdk/client-s3';
+// @ts-expect-error s3rver 3.7 ships no type declarations
+import S3rverModule from 's3rver';
+import { afterAll, afterEach, beforeAll, beforeEach, describe, expect, it, vi } from 'vitest';
+import {
+	MAX_DOCUMENT_BYTES,
+	checkDocument,
+	get,
+	put,
+	remove,
+	sniffImage,
+	sniffPdf
+} from './storage';
+
+interface FakeS3 {
+	run(): Promise<{ port: number }>;
+	close(): Promise<void>;
+}
+const S3rver = S3rverModule as new (options: object) => FakeS3;
+
+/** A one-page PDF with a correct cross-reference table (ISO 32000-1, §7.5). */
+function minimalPdf(): Uint8Array<ArrayBuffer> {
+	const objects = [
+		'<< /Type /Catalog /Pages 2 0 R >>',
+		'<< /Type /Pages /Kids [3 0 R] /Count 1 >>',
+		'<< /Type /Page /Parent 2 0 R /MediaBox [0 0 595 842] >>'
+	];
+	let body = '%PDF-1.4\n';
+	const offsets = objects.map((object, i) => {
+		const offset = body.length;
+		body += `${i + 1} 0 obj\n${object}\nendobj\n`;
+		return offset;
+	});
+	const xref = body.length;
+	body += `xref\n0 ${objects.length + 1}\n0000000000 65535 f \n`;
+	for (const offset of offsets) body += `${String(offset).padStart(10, '0')} 00000 n \n`;
+	body += `trailer\n<< /Size ${objects.length + 1} /Root 1 0 R >>\nstartxref\n${xref}\n%%EOF\n`;
+	return new TextEncoder().encode(body);
+}
+
+// The smallest valid PNG: a 1×1 transparent pixel.
+const png = Uint8Array.from(
+	Buffer.from(
+		'iVBORw0KGgoAAAANSUhEUgAAAAEAAAABCAQAAAC1HAwCAAAAC0lEQVR42mNkYAAAAAYAAjCB0C8AAAAASUVORK5CYII=',
+		'base64'
+	)
+);
+const pdf = minimalPdf();
+
+// Typed on ArrayBuffer (not ArrayBufferLike) so the result is a valid File part.
+function concat(...parts: (Uint8Array | string)[]): Uint8Array<ArrayBuffer> {
+	return new Uint8Array(
+		Buffer.concat(parts.map((p) => (typeof p === 'string' ? Buffer.from(p) : p)))
+	);
+}
+
+describe('sniffPdf (header in the first 1024 bytes, %%EOF in the last 1024: PDF Reference 1.7, appendix H)', () => {
+	it('accepts a real minimal PDF', () => {
+		expect(sniffPdf(pdf)).toEqual({ ext: 'pdf', type: 'application/pdf' });
+		expect(sniffImage(pdf)).toBeNull();
+	});
+
+	it('accepts a header after some leading bytes, and trailing bytes after %%EOF', () => {
+		expect(sniffPdf(concat(' '.repeat(1000), pdf, '\n'.repeat(1000)))).not.toBeNull();
+	});
+
+	it('refuses a header past the first 1024 bytes or a %%EOF before the last 1024', () => {
+		expect(sniffPdf(concat(' '.repeat(1024), pdf))).toBeNull();
+		expect(sniffPdf(concat(pdf, ' '.repeat(1024)))).toBeNull();
+	});
+
+	it('refuses a PNG, an empty file and a truncated PDF', () => {
+		expect(sniffPdf(png)).toBeNull();
+		expect(sniffPdf(new Uint8Array())).toBeNull();
+		expect(sniffPdf(pdf.subarray(0, pdf.length - 10))).toBeNull();
+	});
+
+	it('reads a view into a larger buffer by its own bounds', () => {
+		const buffer = concat('%PDF-', new Uint8Array(2048), '%%EOF');
+		expect(sniffPdf(buffer.subarray(0, 2048))).toBeNull();
+		expect(sniffPdf(buffer.subarray(5))).toBeNull();
+	});
+});
+
+describe('checkDocument', () => {
+	it('accepts a real minimal PDF and returns its bytes', async () => {
+		const checked = await checkDocument(new File([pdf], 'sop.pdf', { type: 'application/pdf' }));
+		expect(checked).toEqual({ ok: true, bytes: pdf, ext: 'pdf' });
+	});
+
+	it('refuses a PNG renamed .pdf, whatever type the browser claims', async () => {
+		const file = new File([png], 'photo.pdf', { type: 'application/pdf' });
+		expect(await checkDocument(file)).toEqual({ ok: false, message: 'That file is not a PDF.' });
+	});
+
+	it('refuses an empty file', async () => {
+		const file = new File([], 'empty.pdf', { type: 'application/pdf' });
+		expect(await checkDocument(file)).toEqual({ ok: false, message: 'That file is not a PDF.' });
+	});
+
+	it('refuses a PDF cut off before %%EOF', async () => {
+		const file = new File([pdf.subarray(0, pdf.length / 2)], 'cut.pdf');
+		expect(await checkDocument(file)).toEqual({ ok: false, message: 'That file is not a PDF.' });
+	});
+
+	it('accepts exactly 20 MB and refuses one byte more', async () => {
+		const pad = (size: number) =>
+			concat(pdf.subarray(0, 9), new Uint8Array(size - pdf.length), pdf.subarray(9));
+		const atLimit = pad(MAX_DOCUMENT_BYTES);
+		expect(atLimit.length).toBe(MAX_DOCUMENT_BYTES);
+		expect((await checkDocument(new File([atLimit], 'big.pdf'))).ok).toBe(true);
+		const tooBig = pad(MAX_DOCUMENT_BYTES + 1);
+		expect(await checkDocument(new File([tooBig], 'big.pdf'))).toEqual({
+			ok: false,
+			message: 'The document is larger than 20 MB.'
+		});
+	});
+});
+
+/** put, get and remove through whichever backend the environment selects. */
+function roundTrips() {
+	it.each([
+		['a PNG', 'gloves', png, 'png', 'image/png'],
+		['a PDF', 'documents', pdf, 'pdf', 'application/pdf']
+	])('stores, reads and removes %s', async (_, folder, bytes, ext, type) => {
+		const key = await put(folder, bytes, ext);
+		expect(key).toMatch(new RegExp(`^${folder}/[0-9a-f]{32}\\.${ext}$`));
+		const file = await get(key);
+		expect(file?.type).toBe(type);
+		expect(Buffer.from(file!.bytes).equals(Buffer.from(bytes))).toBe(true);
+		await remove(key);
+		expect(await get(key)).toBeNull();
+		await remove(key); // removing again is not an error
+	});
+
+	it('finds nothing under a well-formed key that was never stored', async () => {
+		expect(await get(`gloves/${'0'.repeat(32)}.png`)).toBeNull();
+	});
+
+	it('refuses keys of any other shape', async () => {
+		const key = await put('gloves', png, 'png');
+		const name = key.split('/')[1];
+		for (const bad of [
+			`../uploads/${key}`,
+			`gloves/../${key}`,
+			`/${key}`,
+			`gloves/${name}/`,
+			key.replace('.png', '.txt'),
+			key.replace('.png', '.PNG'),
+			`Gloves/${name}`,
+			name
+		]) {
+			expect(await get(bad), bad).toBeNull();
+		}
+		await expect(put('../etc', png, 'png')).rejects.toThrow();
+		await expect(put('gloves', png, 'html')).rejects.toThrow();
+		await remove(key);
+	});
+}
+
+describe('local backend', () => {
+	let dataDir: string;
+
+	beforeAll(async () => {
+		dataDir = await mkdtemp(join(tmpdir(), 'boxwright-storage-'));
+	});
+	beforeEach(() => {
+		vi.stubEnv('BOXWRIGHT_DATA_DIR', dataDir);
+		vi.stubEnv('S3_BUCKET', undefined);
+	});
+	afterEach(() => vi.unstubAllEnvs());
+	afterAll(() => rm(dataDir, { recursive: true, force: true }));
+
+	roundTrips();
+
+	it('writes under BOXWRIGHT_DATA_DIR/uploads/<folder>', async () => {
+		const key = await put('gloves', png, 'png');
+		expect(await readdir(join(dataDir, 'uploads', 'gloves'))).toContain(key.split('/')[1]);
+		await remove(key);
+	});
+});
+
+describe('S3 backend (s3rver on loopback)', () => {
+	const bucket = 'boxwright-test';
+	const credentials = { accessKeyId: 'S3RVER', secretAccessKey: 'S3RVER' }; // s3rver's built-in pair
+	let server: FakeS3;
+	let s3Dir: string;
+	let dataDir: string;
+	let endpoint: string;
+	let client: S3Client;
+
+	beforeAll(async () => {
+		s3Dir = await mkdtemp(join(tmpdir(), 'boxwright-s3rver-'));
+		dataDir = await mkdtemp(join(tmpdir(), 'boxwright-storage-'));
+		server = new S3rver({ address: '127.0.0.1', port: 0, directory: s3Dir, silent: true });
+		const { port } = await server.run();
+		endpoint = `http://127.0.0.1:${port}`;
+		client = new S3Client({ endpoint, region: 'us-east-1', forcePathStyle: true, credentials });
+		await client.send(new CreateBucketCommand({ Bucket: bucket }));
+	});
+	beforeEach(() => {
+		vi.stubEnv('S3_BUCKET', bucket);
+		vi.stubEnv('S3_ENDPOINT', endpoint);
+		vi.stubEnv('S3_ACCESS_KEY_ID', credentials.accessKeyId);
+		vi.stubEnv('S3_SECRET_ACCESS_KEY', credentials.secretAccessKey);
+		vi.stubEnv('S3_REGION', undefined);
+		vi.stubEnv('S3_FORCE_PATH_STYLE', undefined);
+		vi.stubEnv('BOXWRIGHT_DATA_DIR', dataDir);
+	});
+	afterEach(() => vi.unstubAllEnvs());
+	afterAll(async () => {
+		client?.destroy();
+		await server?.close();
+		await Promise.all([s3Dir, dataDir].map((d) => d && rm(d, { recursive: true, force: true })));
+	});
+
+	roundTrips();
+
+	it('stores the exact bytes with a content type, and nothing on local disk', async () => {
+		const key = await put('documents', pdf, 'pdf');
+		const head = await client.send(new HeadObjectCommand({ Bucket: bucket, Key: key }));
+		expect(head.ContentType).toBe('application/pdf');
+		expect(head.ContentLength).toBe(pdf.length);
+		// An SDK that streamed the body aws-chunked would leave chunk framing in the object.
+		const object = await client.send(new GetObjectCommand({ Bucket: bucket, Key: key }));
+		const stored = await object.Body!.transformToByteArray();
+		expect(Buffer.from(stored).equals(Buffer.from(pdf))).toBe(true);
+		expect(await readdir(dataDir)).toEqual([]);
+		await remove(key);
+	});
+
+	it('reports a missing bucket instead of pretending the file is gone', async () => {
+		vi.stubEnv('S3_BUCKET', 'no-such-bucket');
+		await expect(get(`gloves/${'0'.repeat(32)}.png`)).rejects.toThrow();
+	});
+});
