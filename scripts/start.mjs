@@ -29,7 +29,7 @@ const server = spawn('node', ['build'], {
 		...sink.env,
 		DATABASE_URL: db.url,
 		// Uploads are checked at 5 MB with a clear message; the adapter's cap sits above that.
-		BODY_SIZE_LIMIT: process.env.BODY_SIZE_LIMIT ?? '8M',
+		BODY_SIZE_LIMIT: process.env.BODY_SIZE_LIMIT ?? '26M',
 		PORT: port,
 		ORIGIN: process.env.ORIGIN ?? `http://localhost:${port}`
 	}

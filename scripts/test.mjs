@@ -19,6 +19,13 @@ import {
 	waitForHttp
 } from './lib/setup.mjs';
 
+// `npm test -- <files>` runs only those: *.e2e.ts in Playwright, the rest in vitest.
+const filters = process.argv.slice(2);
+const e2eFilters = filters.filter((f) => f.endsWith('.e2e.ts'));
+const vitestFilters = filters.filter((f) => !f.endsWith('.e2e.ts'));
+const runVitest = !filters.length || vitestFilters.length > 0;
+const runPlaywright = !filters.length || e2eFilters.length > 0;
+
 loadEnvFile();
 ensureDependencies();
 const db = await ensureDatabase({ database: 'boxwright_test', fresh: true });
@@ -31,7 +38,7 @@ rmSync(results, { recursive: true, force: true });
 mkdirSync(results, { recursive: true });
 
 const failures = [];
-if (run('npm', ['run', '-s', 'check']) !== 0) failures.push('svelte-check');
+if (!filters.length && run('npm', ['run', '-s', 'check']) !== 0) failures.push('svelte-check');
 ensureBuild();
 
 rmSync(join(dataDir(), 'test-mail'), { recursive: true, force: true });
@@ -45,7 +52,7 @@ const env = {
 	OUTBOX_BACKOFF_MS: '200',
 	OUTBOX_POLL_MS: '200',
 	DATABASE_URL: db.url,
-	BODY_SIZE_LIMIT: process.env.BODY_SIZE_LIMIT ?? '8M',
+	BODY_SIZE_LIMIT: process.env.BODY_SIZE_LIMIT ?? '26M',
 	PORT: port,
 	ORIGIN: baseUrl,
 	APP_URL: baseUrl,
@@ -63,16 +70,25 @@ try {
 	await waitForHttp(`${baseUrl}/api/health`, 60, server);
 	const vitestJson = join(results, 'vitest.json');
 	if (
+		runVitest &&
 		run(
 			'npx',
-			['vitest', 'run', '--reporter=default', '--reporter=json', `--outputFile.json=${vitestJson}`],
+			[
+				'vitest',
+				'run',
+				'--reporter=default',
+				'--reporter=json',
+				`--outputFile.json=${vitestJson}`,
+				...vitestFilters
+			],
 			{ env }
 		) !== 0
 	)
 		failures.push('vitest');
 	const playwrightJson = join(results, 'playwright.json');
 	if (
-		run('npx', ['playwright', 'test'], {
+		runPlaywright &&
+		run('npx', ['playwright', 'test', ...e2eFilters], {
 			env: { ...env, PLAYWRIGHT_JSON_OUTPUT_NAME: playwrightJson }
 		}) !== 0
 	)

@@ -5,7 +5,9 @@ import {
 	index,
 	int,
 	mysqlEnum,
-	mysqlTable
+	mysqlTable,
+	uniqueIndex,
+	varchar
 } from 'drizzle-orm/mysql-core';
 import { readingSources } from '../../domain/boxes';
 import { boxes } from './boxes';
@@ -21,7 +23,15 @@ export const atmosphereReadings = mysqlTable(
 		o2Ppm: decimal({ precision: 10, scale: 3, mode: 'number' }).notNull(),
 		h2oPpm: decimal({ precision: 10, scale: 3, mode: 'number' }).notNull(),
 		source: mysqlEnum(readingSources).notNull(),
-		recordedBy: int()
+		recordedBy: int(),
+		/** The booking a check-in or check-out reading belongs to. */
+		bookingId: int(),
+		/** What the person reading it saw: a problem worth a manager's look. */
+		note: varchar({ length: 500 })
 	},
-	(t) => [index('atmosphere_readings_box_at_idx').on(t.boxId, t.at)]
+	// One reading per box and second: a log imported twice adds nothing.
+	(t) => [
+		uniqueIndex('atmosphere_readings_box_at_uq').on(t.boxId, t.at),
+		index('atmosphere_readings_booking_idx').on(t.bookingId)
+	]
 );

@@ -9,6 +9,7 @@ import {
 	primaryKey,
 	smallint,
 	text,
+	tinyint,
 	varchar
 } from 'drizzle-orm/mysql-core';
 import { sql } from 'drizzle-orm';
@@ -42,6 +43,10 @@ export const boxes = mysqlTable('boxes', {
 	purgeMin: smallint().notNull().default(30),
 	needsApproval: boolean().notNull().default(false),
 	excludedClasses: json().$type<string[]>().notNull().default([]),
+	// Leak tightness the box must show (ISO 10648-2 class 1–4).
+	requiredLeakClass: tinyint().notNull().default(3),
+	// A glove change ends only after a passing leak test or an in-spec reading.
+	gloveChangeNeedsProof: boolean().notNull().default(false),
 	createdAt: datetime({ mode: 'date' })
 		.notNull()
 		.default(sql`CURRENT_TIMESTAMP`)

@@ -8,3 +8,4 @@ export * from './bookings';
 export * from './atmosphere';
 export * from './notifications';
 export * from './gloves';
+export * from './upkeep';

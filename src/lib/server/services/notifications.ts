@@ -1,5 +1,5 @@
 import { and, desc, eq, inArray, isNull, sql } from 'drizzle-orm';
-import { db } from '../db';
+import { db, type Transaction } from '../db';
 import { notifications, outbox, users } from '../db/schema';
 import { staffNotice } from '../mail/messages';
 import { enqueue } from '../mail/outbox';
@@ -49,16 +49,26 @@ export async function outboxPage(status?: 'pending' | 'sending' | 'sent' | 'fail
 		.limit(limit);
 }
 
-/** Tells every active manager and admin, by e-mail and in the app, once per `dedupe`. */
-export async function notifyManagers(title: string, body: string, link: string, dedupe: string) {
-	const staff = await db
-		.select({ id: users.id, email: users.email })
-		.from(users)
-		.where(and(inArray(users.role, ['manager', 'admin']), eq(users.status, 'active')));
-	const message = staffNotice(title, body, link);
-	await db.transaction(async (tx) => {
+/**
+ * Tells every active manager and admin, by e-mail and in the app, once per `dedupe`; inside
+ * `tx` when given, so the notice is queued only if what it reports is committed.
+ */
+export async function notifyManagers(
+	title: string,
+	body: string,
+	link: string,
+	dedupe: string,
+	tx?: Transaction
+) {
+	const run = async (t: Transaction) => {
+		const staff = await t
+			.select({ id: users.id, email: users.email })
+			.from(users)
+			.where(and(inArray(users.role, ['manager', 'admin']), eq(users.status, 'active')));
+		const message = staffNotice(title, body, link);
 		for (const person of staff) {
-			await enqueue(tx, person, message, `${dedupe}:${person.id}`, { title, body, link });
+			await enqueue(t, person, message, `${dedupe}:${person.id}`, { title, body, link });
 		}
-	});
+	};
+	await (tx ? run(tx) : db.transaction(run));
 }

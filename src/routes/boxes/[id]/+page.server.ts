@@ -10,6 +10,8 @@ import { hasRole } from '$lib/domain/roles';
 import { idParam } from '$lib/server/params';
 import { boxOutages, getBox } from '$lib/server/services/boxes';
 import { attempt } from '$lib/server/services/errors';
+import { latestReadings, recordReading } from '$lib/server/services/atmosphere';
+import { checkReading } from '$lib/domain/atmosphere';
 import type { Actions, PageServerLoad } from './$types';
 
 export const load: PageServerLoad = async (event) => {
@@ -40,6 +42,7 @@ export const load: PageServerLoad = async (event) => {
 		volumeL: box.volumeL,
 		description: box.description,
 		outages: await boxOutages(id),
+		readings: await latestReadings(id, 8),
 		gloves: await glovesOfBox(id),
 		gloveHistory: hasRole(user.role, 'manager') ? await gloveHistory(id) : [],
 		outageDefaults: outageDefaults()
@@ -66,6 +69,27 @@ function localInstant(values: Values, prefix: 'start' | 'end') {
 }
 
 export const actions: Actions = {
+	reading: async (event) => {
+		const actor = requireRole(event, 'member');
+		const boxId = idParam(event.params.id, 'The box');
+		const values = Object.fromEntries(await event.request.formData()) as Values;
+		const number = (v: string | undefined) =>
+			v?.trim() ? Number(v.replace(',', '.')) : Number.NaN;
+		const reading = { o2Ppm: number(values.o2Ppm), h2oPpm: number(values.h2oPpm) };
+		const errors: Record<string, string> = checkReading(reading);
+		const note = (values.note ?? '').trim();
+		if (note.length > 500) errors.note = 'Use at most 500 characters.';
+		if (Object.keys(errors).length) return fail(400, { form: 'reading', values, errors });
+		const result = await attempt(() => recordReading(actor, boxId, { ...reading, note }));
+		if (!result.ok)
+			return fail(result.error.status, {
+				form: 'reading',
+				values,
+				errors: {},
+				message: result.error.message
+			});
+		return { form: 'reading', recorded: true, state: result.value.state };
+	},
 	outage: async (event) => {
 		const actor = requireRole(event, 'manager');
 		const boxId = idParam(event.params.id, 'The box');

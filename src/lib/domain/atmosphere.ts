@@ -1,0 +1,66 @@
+// Atmosphere state of a box from its newest O2 and H2O readings.
+// Levels are the box's own warn and alarm thresholds (ppm). Common practice for what they
+// usually are: below 1 ppm is in spec, a few to 10 ppm means investigate, tens of ppm means
+// stop sensitive work and purge (REFERENCES.md, "Rules of the trade").
+import type { AtmosphereState } from './boxes';
+
+export type Thresholds = {
+	o2WarnPpm: number;
+	o2AlarmPpm: number;
+	h2oWarnPpm: number;
+	h2oAlarmPpm: number;
+};
+
+export type Reading = { o2Ppm: number; h2oPpm: number };
+
+/** Highest plausible ppm value: pure oxygen or water vapour would be 10⁶. */
+export const MAX_PPM = 1_000_000;
+
+/**
+ * The state after a new reading. Above either alarm level: alarm. Under both warn levels:
+ * ok. In between: watch, except that an alarm stands until a reading is back under warn,
+ * so a box hovering just under its alarm level does not flap in and out of alarm.
+ */
+export function nextAtmosphereState(
+	current: AtmosphereState,
+	reading: Reading,
+	t: Thresholds
+): AtmosphereState {
+	if (reading.o2Ppm > t.o2AlarmPpm || reading.h2oPpm > t.h2oAlarmPpm) return 'alarm';
+	if (reading.o2Ppm < t.o2WarnPpm && reading.h2oPpm < t.h2oWarnPpm) return 'ok';
+	return current === 'alarm' ? 'alarm' : 'watch';
+}
+
+/** Which gases are above which level, in words, for banners and e-mails. */
+export function describeReading(reading: Reading, t: Thresholds): string[] {
+	const out: string[] = [];
+	if (reading.o2Ppm > t.o2AlarmPpm)
+		out.push(`O₂ ${reading.o2Ppm} ppm is above the alarm level of ${t.o2AlarmPpm} ppm`);
+	else if (reading.o2Ppm >= t.o2WarnPpm)
+		out.push(`O₂ ${reading.o2Ppm} ppm is at or above the warn level of ${t.o2WarnPpm} ppm`);
+	if (reading.h2oPpm > t.h2oAlarmPpm)
+		out.push(`H₂O ${reading.h2oPpm} ppm is above the alarm level of ${t.h2oAlarmPpm} ppm`);
+	else if (reading.h2oPpm >= t.h2oWarnPpm)
+		out.push(`H₂O ${reading.h2oPpm} ppm is at or above the warn level of ${t.h2oWarnPpm} ppm`);
+	return out;
+}
+
+/** A reading is in spec when both gases are under their warn levels. */
+export const inSpec = (reading: Reading, t: Thresholds) =>
+	reading.o2Ppm < t.o2WarnPpm && reading.h2oPpm < t.h2oWarnPpm;
+
+/** Problems with one reading's values, as field → message. */
+export function checkReading(r: { o2Ppm: unknown; h2oPpm: unknown }): Record<string, string> {
+	const problems: Record<string, string> = {};
+	for (const [field, label] of [
+		['o2Ppm', 'O₂'],
+		['h2oPpm', 'H₂O']
+	] as const) {
+		const v = r[field];
+		if (typeof v !== 'number' || !Number.isFinite(v))
+			problems[field] = `${label} must be a number of ppm.`;
+		else if (v < 0) problems[field] = `${label} cannot be negative.`;
+		else if (v > MAX_PPM) problems[field] = `${label} cannot be above 1,000,000 ppm.`;
+	}
+	return problems;
+}

@@ -1,0 +1,213 @@
+import { afterAll, describe, expect, it } from 'vitest';
+import { and, count, eq, like } from 'drizzle-orm';
+import { atmosphereReadings, boxes, outbox } from '../../src/lib/server/db/schema';
+import { certifiedMemberAndBox, closeTestDb, makeBox, makeUser, testDb } from '../support/db';
+import { errorOf, signedIn } from '../support/http';
+import { slot } from '../support/time';
+
+afterAll(closeTestDb);
+
+const readingsOf = async (boxId: number) =>
+	(
+		await testDb()
+			.select({ n: count() })
+			.from(atmosphereReadings)
+			.where(eq(atmosphereReadings.boxId, boxId))
+	)[0].n;
+
+const stateOf = async (boxId: number) =>
+	(await testDb().select({ s: boxes.atmosphereState }).from(boxes).where(eq(boxes.id, boxId)))[0].s;
+
+/** A log of `rows` readings one minute apart, ending an hour ago. */
+function sensorLog(rows: number, o2 = (i: number) => 0.3 + (i % 7) / 10) {
+	const end = Math.floor(Date.now() / 60_000) * 60_000 - 3_600_000;
+	const lines = ['time,O2 ppm,H2O ppm'];
+	for (let i = 0; i < rows; i++) {
+		const at = new Date(end - (rows - 1 - i) * 60_000).toISOString();
+		lines.push(`${at},${o2(i).toFixed(2)},${(0.2 + (i % 5) / 10).toFixed(2)}`);
+	}
+	return lines.join('\n') + '\n';
+}
+
+const postCsv = (
+	client: Awaited<ReturnType<typeof signedIn>>,
+	boxId: number,
+	csv: string,
+	q = ''
+) =>
+	client.request('POST', `/api/boxes/${boxId}/readings/import${q}`, csv, {
+		'content-type': 'text/csv'
+	});
+
+describe('manual readings', () => {
+	it('records a reading and refuses impossible ones with field messages', async () => {
+		const boxId = await makeBox();
+		const member = await signedIn(await makeUser('member'));
+		const ok = await member.post(`/api/boxes/${boxId}/readings`, { o2Ppm: 0.4, h2oPpm: 0.6 });
+		expect(ok.status).toBe(201);
+		expect((await ok.json()).atmosphereState).toBe('ok');
+
+		const negative = await member.post(`/api/boxes/${boxId}/readings`, { o2Ppm: -2, h2oPpm: 0.6 });
+		expect(negative.status).toBe(400);
+		expect((await errorOf(negative)).details).toEqual({
+			fields: { o2Ppm: 'O₂ cannot be negative.' }
+		});
+		const future = await member.post(`/api/boxes/${boxId}/readings`, {
+			at: new Date(Date.now() + 86_400_000).toISOString(),
+			o2Ppm: 1,
+			h2oPpm: 1
+		});
+		expect(future.status).toBe(400);
+		expect((await errorOf(future)).details).toEqual({
+			fields: { at: 'The time is in the future.' }
+		});
+		const text = await member.post(`/api/boxes/${boxId}/readings`, { o2Ppm: 'high', h2oPpm: 1 });
+		expect(text.status).toBe(400);
+		expect(
+			(await errorOf(await member.post('/api/boxes/999999/readings', { o2Ppm: 1, h2oPpm: 1 }))).code
+		).toBe('not_found');
+		expect(await readingsOf(boxId)).toBe(1);
+	});
+
+	it('puts the box in alarm above its alarm level, refuses bookings, tells managers, and clears under warn', async () => {
+		const { user, boxId } = await certifiedMemberAndBox({ o2WarnPpm: 1, o2AlarmPpm: 10 });
+		const member = await signedIn(user);
+		const high = await member.post(`/api/boxes/${boxId}/readings`, { o2Ppm: 25, h2oPpm: 0.5 });
+		expect((await high.json()).atmosphereState).toBe('alarm');
+
+		const booking = await member.post('/api/bookings', { boxId, ...slot(2, 10), purpose: 'Test' });
+		expect(booking.status).toBe(422);
+		const refusal = await errorOf(booking);
+		expect(
+			(refusal.details as { reasons: { code: string }[] }).reasons.map((r) => r.code)
+		).toContain('atmosphere_alarm');
+		const [{ n: told }] = await testDb()
+			.select({ n: count() })
+			.from(outbox)
+			.where(
+				and(
+					like(outbox.subject, '% is in atmosphere alarm'),
+					like(outbox.dedupeKey, `atmosphere-alarm:${boxId}:%`)
+				)
+			);
+		expect(told).toBeGreaterThan(0);
+
+		// Between warn and alarm the alarm stands; under warn it clears.
+		const page = await member.get(`/boxes/${boxId}`);
+		expect(await page.text()).toContain('atmosphere alarm');
+		await member.post(`/api/boxes/${boxId}/readings`, { o2Ppm: 5, h2oPpm: 0.5 });
+		expect(await stateOf(boxId)).toBe('alarm');
+		await member.post(`/api/boxes/${boxId}/readings`, { o2Ppm: 0.5, h2oPpm: 0.5 });
+		expect(await stateOf(boxId)).toBe('ok');
+		const again = await member.post('/api/bookings', { boxId, ...slot(2, 10), purpose: 'Test' });
+		expect(again.status).toBe(201);
+	});
+});
+
+describe('CSV import', () => {
+	it('imports 50,000 rows once; the same file again adds nothing', async () => {
+		const boxId = await makeBox();
+		const manager = await signedIn(await makeUser('manager'));
+		const csv = sensorLog(50_000);
+		const first = await postCsv(manager, boxId, csv);
+		expect(first.status).toBe(201);
+		expect((await first.json()).report).toMatchObject({
+			imported: true,
+			accepted: 50_000,
+			duplicates: 0,
+			rejectedCount: 0
+		});
+		const second = await postCsv(manager, boxId, csv);
+		expect((await second.json()).report).toMatchObject({ accepted: 0, duplicates: 50_000 });
+		expect(await readingsOf(boxId)).toBe(50_000);
+
+		// A week's chart is thinned to at most 2,000 points that keep each interval's highest value.
+		const series = await (await manager.get(`/api/boxes/${boxId}/readings`)).json();
+		expect(series.t.length).toBeLessThanOrEqual(2_000);
+		expect(series.bucketSeconds).toBeGreaterThan(0);
+		expect(Math.max(...series.o2)).toBeCloseTo(0.9, 5);
+	}, 120_000);
+
+	it('reports each rejected row and stores nothing unless told to skip them', async () => {
+		const boxId = await makeBox();
+		const manager = await signedIn(await makeUser('manager'));
+		const future = new Date(Date.now() + 86_400_000).toISOString();
+		const csv = [
+			'time,O2 ppm,H2O ppm',
+			'2026-11-01T10:00:00Z,0.5,0.4',
+			'2026-11-01T10:01:00Z,-0.5,0.4',
+			'2026-11-01T10:02:00Z,0.5,lots',
+			`${future},0.5,0.4`,
+			'not a time,0.5,0.4',
+			'2026-11-01T10:00:00Z,0.5,0.4',
+			'2026-11-01T10:03:00Z,0.6,0.4'
+		].join('\n');
+		const refused = await postCsv(manager, boxId, csv);
+		expect(refused.status).toBe(422);
+		const error = await errorOf(refused);
+		expect(error.code).toBe('rows_rejected');
+		expect(error.details).toEqual({
+			report: {
+				imported: false,
+				accepted: 2,
+				duplicates: 1,
+				rejectedCount: 4,
+				rejected: [
+					{ line: 3, reason: 'O₂ cannot be negative.' },
+					{ line: 4, reason: 'H₂O must be a number of ppm.' },
+					{ line: 5, reason: 'the time is in the future' },
+					{ line: 6, reason: expect.stringContaining('is not a time') }
+				]
+			}
+		});
+		expect(await readingsOf(boxId)).toBe(0);
+
+		const skipped = await postCsv(manager, boxId, csv, '?skipRejected=1');
+		expect(skipped.status).toBe(201);
+		expect((await skipped.json()).report).toMatchObject({
+			imported: true,
+			accepted: 2,
+			rejectedCount: 4
+		});
+		expect(await readingsOf(boxId)).toBe(2);
+	});
+
+	it('refuses a wrong header, a binary file, an oversized body and a member', async () => {
+		const boxId = await makeBox();
+		const manager = await signedIn(await makeUser('manager'));
+		const header = await postCsv(manager, boxId, 'when,oxygen level,water\n1,2,3\n');
+		expect(header.status).toBe(400);
+		expect((await errorOf(header)).message).toContain('time, O2 ppm and H2O ppm');
+
+		const png = Buffer.from([0x89, 0x50, 0x4e, 0x47, 0x0d, 0x0a, 0x1a, 0x0a, 0, 0, 0, 0x0d, 0xff]);
+		const binary = await manager.request(
+			'POST',
+			`/api/boxes/${boxId}/readings/import`,
+			png.toString('latin1'),
+			{
+				'content-type': 'text/csv'
+			}
+		);
+		expect(binary.status).toBe(400);
+		expect((await errorOf(binary)).message).toBe('That file is not a CSV text file.');
+
+		const huge = await postCsv(manager, boxId, sensorLog(1) + 'x'.repeat(26 * 1024 * 1024));
+		expect(huge.status).toBe(413);
+		expect((await errorOf(huge)).code).toBe('too_large');
+
+		const member = await signedIn(await makeUser('member'));
+		expect((await postCsv(member, boxId, sensorLog(3))).status).toBe(403);
+		expect(await readingsOf(boxId)).toBe(0);
+	});
+
+	it('an imported excursion above the alarm level puts the box in alarm', async () => {
+		const boxId = await makeBox({ o2AlarmPpm: 10 });
+		const manager = await signedIn(await makeUser('manager'));
+		const report = await postCsv(
+			manager,
+			boxId,
+			sensorLog(10, (i) => (i === 9 ? 40 : 0.4))
+		);
+		expect((await report.json()).report.state).toBe('alarm');
+	});
+});
