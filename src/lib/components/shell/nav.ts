@@ -9,7 +9,8 @@ export function navFor(role: Role, isPi: boolean): NavItem[] {
 		{ href: '/calendar', label: 'Calendar' },
 		{ href: '/bookings', label: 'My bookings' },
 		{ href: '/boxes', label: 'Boxes' },
-		{ href: '/training', label: 'Training' }
+		{ href: '/training', label: 'Training' },
+		{ href: '/calc', label: 'Calculations' }
 	];
 	if (hasRole(role, 'trainer')) items.push({ href: '/manage/training', label: 'Certifications' });
 	if (isPi || hasRole(role, 'manager'))
