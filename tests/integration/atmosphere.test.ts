@@ -1,6 +1,6 @@
 import { afterAll, describe, expect, it } from 'vitest';
 import { and, count, eq, like } from 'drizzle-orm';
-import { atmosphereReadings, boxes, outbox } from '../../src/lib/server/db/schema';
+import { atmosphereReadings, bookings, boxes, outbox } from '../../src/lib/server/db/schema';
 import { certifiedMemberAndBox, closeTestDb, makeBox, makeUser, testDb } from '../support/db';
 import { errorOf, signedIn } from '../support/http';
 import { slot } from '../support/time';
@@ -209,5 +209,85 @@ describe('CSV import', () => {
 			sensorLog(10, (i) => (i === 9 ? 40 : 0.4))
 		);
 		expect((await report.json()).report.state).toBe('alarm');
+	});
+});
+
+describe('check-in and check-out', () => {
+	async function bookingNow(userId: number, boxId: number, startOffsetMin: number) {
+		const startAt = new Date(Math.floor(Date.now() / 60_000) * 60_000 + startOffsetMin * 60_000);
+		const endAt = new Date(startAt.getTime() + 3_600_000);
+		const [row] = await testDb()
+			.insert(bookings)
+			.values({
+				boxId,
+				userId,
+				startAt,
+				endAt,
+				blockedUntil: endAt,
+				purpose: 'Check test',
+				status: 'confirmed'
+			})
+			.$returningId();
+		return row.id;
+	}
+
+	it('checks in and out with readings, passes a noted problem to the managers, and refuses out of turn', async () => {
+		const { user, boxId } = await certifiedMemberAndBox();
+		const member = await signedIn(user);
+		const id = await bookingNow(user.id, boxId, -10);
+
+		const early = await member.post(`/api/bookings/${id}/check-out`, { o2Ppm: 0.4, h2oPpm: 0.3 });
+		expect(early.status).toBe(409);
+		expect((await errorOf(early)).message).toBe('Check in first.');
+
+		const other = await signedIn(await makeUser('member'));
+		expect(
+			(await other.post(`/api/bookings/${id}/check-in`, { o2Ppm: 0.4, h2oPpm: 0.3 })).status
+		).toBe(403);
+
+		const checkIn = await member.post(`/api/bookings/${id}/check-in`, {
+			o2Ppm: 0.4,
+			h2oPpm: 0.3,
+			note: 'Left glove feels tacky at the cuff'
+		});
+		expect(checkIn.status).toBe(201);
+		const twice = await member.post(`/api/bookings/${id}/check-in`, { o2Ppm: 0.4, h2oPpm: 0.3 });
+		expect((await errorOf(twice)).message).toBe('This booking is already checked in.');
+
+		const checkOut = await member.post(`/api/bookings/${id}/check-out`, {
+			o2Ppm: 0.6,
+			h2oPpm: 0.5
+		});
+		expect(checkOut.status).toBe(201);
+
+		const [booking] = await testDb().select().from(bookings).where(eq(bookings.id, id));
+		expect(booking.checkInAt).not.toBeNull();
+		expect(booking.checkOutAt).not.toBeNull();
+		const readings = await testDb()
+			.select()
+			.from(atmosphereReadings)
+			.where(eq(atmosphereReadings.bookingId, id));
+		expect(readings.map((r) => r.source).sort()).toEqual(['check_in', 'check_out']);
+		const notes = await testDb()
+			.select()
+			.from(outbox)
+			.where(like(outbox.subject, `%a problem noted with a reading`));
+		expect(notes.some((m) => m.textBody.includes('Left glove feels tacky at the cuff'))).toBe(true);
+	});
+
+	it('opens check-in only shortly before the start, and prompts for it in the app', async () => {
+		const { user, boxId } = await certifiedMemberAndBox();
+		const member = await signedIn(user);
+		const later = await bookingNow(user.id, boxId, 120);
+		const tooEarly = await member.post(`/api/bookings/${later}/check-in`, {
+			o2Ppm: 0.4,
+			h2oPpm: 0.3
+		});
+		expect((await errorOf(tooEarly)).message).toMatch(/opens 15 minutes before/);
+
+		const soon = await bookingNow(user.id, boxId, 5);
+		const page = await (await member.get('/bookings')).text();
+		expect(page).toContain(`/bookings/${soon}/check`);
+		expect(page).toContain('Check in with the box');
 	});
 });

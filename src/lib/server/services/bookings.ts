@@ -500,7 +500,9 @@ export async function bookingsOf(userId: number, now = new Date()) {
 			status: bookings.status,
 			cancelReason: bookings.cancelReason,
 			cancelCause: bookings.cancelCause,
-			volatileSolvents: bookings.volatileSolvents
+			volatileSolvents: bookings.volatileSolvents,
+			checkInAt: bookings.checkInAt,
+			checkOutAt: bookings.checkOutAt
 		})
 		.from(bookings)
 		.innerJoin(boxes, eq(boxes.id, bookings.boxId))
