@@ -57,6 +57,13 @@ export const boxSchema = z
 		weeklyQuotaMin: minutes('the weekly quota', 0, 10080),
 		purgeMin: minutes('the purge time', 0, 720),
 		needsApproval: z.coerce.boolean().default(false),
+		requiredLeakClass: z.coerce
+			.number({ error: 'Choose a leak-tightness class.' })
+			.int()
+			.min(1, 'Choose class 1 to 4.')
+			.max(4, 'Choose class 1 to 4.')
+			.default(3),
+		gloveChangeNeedsProof: z.coerce.boolean().default(false),
 		excludedClasses: z.array(z.enum(chemicalClassKeys as [string, ...string[]])).default([]),
 		requiredModuleIds: z.array(z.coerce.number().int().positive()).default([]),
 		ports: z.array(portSchema).max(12, 'At most 12 ports.').default([])
@@ -109,6 +116,7 @@ export function boxFormToInput(form: FormData): unknown {
 	return {
 		...fields,
 		needsApproval: form.get('needsApproval') === 'on',
+		gloveChangeNeedsProof: form.get('gloveChangeNeedsProof') === 'on',
 		excludedClasses: form.getAll('excludedClasses').map(String),
 		requiredModuleIds: form.getAll('requiredModuleIds').map(String),
 		ports: positions

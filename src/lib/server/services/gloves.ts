@@ -27,6 +27,7 @@ import type { Actor } from './accounts';
 import { audit } from './audit';
 import { forbidden, notFound, ServiceError } from './errors';
 import { closeOutage, openOutage } from './outages';
+import { missingProof } from './leak-tests';
 
 /** The glove on each of a box's ports now, with its last inspection. */
 export async function glovesOfBox(boxId: number) {
@@ -320,6 +321,12 @@ export async function completeGloveChange(
 			const message = `Only ${change.flushCycles} flush cycle${change.flushCycles === 1 ? '' : 's'} recorded; at least ${MIN_FLUSH_CYCLES} are needed, or a written override.`;
 			throw new ServiceError(422, message, { fields: { overrideNote: message } });
 		}
+		const [port] = await tx
+			.select({ boxId: boxPorts.boxId })
+			.from(boxPorts)
+			.where(eq(boxPorts.id, change.portId));
+		const proof = port ? await missingProof(tx, port.boxId, change.startedAt) : null;
+		if (proof) throw new ServiceError(422, proof, { fields: { proof } });
 		if (change.oldGloveId) {
 			await tx
 				.update(gloves)

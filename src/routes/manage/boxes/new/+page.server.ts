@@ -18,6 +18,8 @@ const defaults = {
 	weeklyQuotaMin: 720,
 	purgeMin: 30,
 	needsApproval: false,
+	requiredLeakClass: 3,
+	gloveChangeNeedsProof: false,
 	o2WarnPpm: 1,
 	o2AlarmPpm: 10,
 	h2oWarnPpm: 1,

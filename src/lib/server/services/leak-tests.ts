@@ -1,0 +1,165 @@
+// Leak tests saved against a box, with their inputs, result, class and pass/fail.
+import { and, desc, eq, gte } from 'drizzle-orm';
+import { inSpec } from '$lib/domain/atmosphere';
+import {
+	checkGaugeInput,
+	checkOxygenInput,
+	checkPressureInput,
+	isoClass,
+	leakRateByOxygen,
+	leakRateByPressure,
+	meetsClass,
+	pressureInputFromGauge,
+	type GaugeInput,
+	type IsoClass,
+	type OxygenInput,
+	type PressureInput
+} from '$lib/domain/leak';
+import { hasRole } from '$lib/domain/roles';
+import { db, type Transaction } from '../db';
+import { atmosphereReadings, boxes, leakTests, users } from '../db/schema';
+import type { Actor } from './accounts';
+import { audit } from './audit';
+import { forbidden, notFound, ServiceError } from './errors';
+
+export type LeakTestInput =
+	| ({ method: 'oxygen' } & OxygenInput)
+	| ({ method: 'pressure' } & PressureInput)
+	| ({ method: 'gauge' } & GaugeInput);
+
+/** Field name → message, from the domain's "field message" problems. */
+const asFields = (problems: string[]) =>
+	Object.fromEntries(problems.map((p) => [p.split(' ')[0], p]));
+
+/** The hourly leak rate and the inputs worth keeping, or a 400 naming the bad fields. */
+export function evaluate(input: LeakTestInput): {
+	method: 'oxygen' | 'pressure';
+	rate: number;
+	inputs: Record<string, number>;
+} {
+	if (input.method === 'oxygen') {
+		const problems = checkOxygenInput(input);
+		if (problems.length)
+			throw new ServiceError(400, 'Those readings cannot be.', { fields: asFields(problems) });
+		return {
+			method: 'oxygen' as const,
+			rate: leakRateByOxygen(input),
+			inputs: { o2RisePpm: input.o2RisePpm, minutes: input.minutes }
+		};
+	}
+	const gauge = input.method === 'gauge' ? input : null;
+	if (gauge) {
+		const problems = checkGaugeInput(gauge);
+		if (problems.length)
+			throw new ServiceError(400, 'Those readings cannot be.', { fields: asFields(problems) });
+	}
+	const absolute: PressureInput = gauge ? pressureInputFromGauge(gauge) : (input as PressureInput);
+	const problems = checkPressureInput(absolute);
+	if (problems.length)
+		throw new ServiceError(400, 'Those readings cannot be.', { fields: asFields(problems) });
+	const { p1Pa, p2Pa, t1K, t2K, hours } = absolute;
+	return {
+		method: 'pressure' as const,
+		rate: leakRateByPressure(absolute),
+		inputs: {
+			p1Pa,
+			p2Pa,
+			t1K,
+			t2K,
+			hours,
+			...(gauge && {
+				gauge1Pa: gauge.gauge1Pa,
+				gauge2Pa: gauge.gauge2Pa,
+				barometric1Pa: gauge.barometric1Pa,
+				barometric2Pa: gauge.barometric2Pa
+			})
+		}
+	};
+}
+
+export async function recordLeakTest(
+	actor: Actor,
+	boxId: number,
+	input: LeakTestInput & { note?: string | null },
+	now = new Date()
+) {
+	if (!hasRole(actor.role, 'manager')) throw forbidden('Only a manager records leak tests.');
+	const result = evaluate(input);
+	return db.transaction(async (tx) => {
+		const [box] = await tx
+			.select({ id: boxes.id, requiredLeakClass: boxes.requiredLeakClass })
+			.from(boxes)
+			.where(eq(boxes.id, boxId));
+		if (!box) throw notFound('The box');
+		const required = box.requiredLeakClass as IsoClass;
+		const row = {
+			boxId,
+			method: result.method,
+			inputs: result.inputs,
+			hourlyLeakRate: result.rate,
+			isoClass: isoClass(result.rate),
+			requiredClass: required,
+			passed: meetsClass(result.rate, required),
+			note: input.note?.trim() || null,
+			testedAt: now,
+			testedBy: actor.id
+		};
+		const [{ id }] = await tx.insert(leakTests).values(row).$returningId();
+		await audit(tx, {
+			actorId: actor.id,
+			action: 'leak_test.recorded',
+			entity: 'box',
+			entityId: boxId,
+			details: { leakTestId: id, rate: result.rate, isoClass: row.isoClass, passed: row.passed }
+		});
+		return { id, ...row };
+	});
+}
+
+export async function leakTestsOf(boxId: number, limit = 50) {
+	return db
+		.select({
+			id: leakTests.id,
+			method: leakTests.method,
+			inputs: leakTests.inputs,
+			hourlyLeakRate: leakTests.hourlyLeakRate,
+			isoClass: leakTests.isoClass,
+			requiredClass: leakTests.requiredClass,
+			passed: leakTests.passed,
+			note: leakTests.note,
+			testedAt: leakTests.testedAt,
+			testedBy: users.name
+		})
+		.from(leakTests)
+		.leftJoin(users, eq(users.id, leakTests.testedBy))
+		.where(eq(leakTests.boxId, boxId))
+		.orderBy(desc(leakTests.testedAt), desc(leakTests.id))
+		.limit(limit);
+}
+
+/**
+ * For boxes that ask for it: whether a passing leak test or an in-spec reading has been
+ * recorded since `since` (the start of a glove change). Null when the box may go back.
+ */
+export async function missingProof(
+	tx: Transaction,
+	boxId: number,
+	since: Date
+): Promise<string | null> {
+	const [box] = await tx.select().from(boxes).where(eq(boxes.id, boxId));
+	if (!box?.gloveChangeNeedsProof) return null;
+	const [test] = await tx
+		.select({ id: leakTests.id })
+		.from(leakTests)
+		.where(
+			and(eq(leakTests.boxId, boxId), eq(leakTests.passed, true), gte(leakTests.testedAt, since))
+		)
+		.limit(1);
+	if (test) return null;
+	const readings = await tx
+		.select({ o2Ppm: atmosphereReadings.o2Ppm, h2oPpm: atmosphereReadings.h2oPpm })
+		.from(atmosphereReadings)
+		.where(and(eq(atmosphereReadings.boxId, boxId), gte(atmosphereReadings.at, since)));
+	if (readings.some((r) => inSpec(r, box))) return null;
+	return `${box.name} goes back into service after a glove change only once a passing leak test or a reading under both warn levels is recorded after the change began.`;
+}
