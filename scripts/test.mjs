@@ -51,6 +51,7 @@ const env = {
 	// Quick retries, so a test of a mail outage finishes in seconds.
 	OUTBOX_BACKOFF_MS: '200',
 	OUTBOX_POLL_MS: '200',
+	SCHEDULER_POLL_MS: '300',
 	DATABASE_URL: db.url,
 	BODY_SIZE_LIMIT: process.env.BODY_SIZE_LIMIT ?? '26M',
 	PORT: port,

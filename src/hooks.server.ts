@@ -5,6 +5,7 @@ import { readSession } from '$lib/server/auth';
 import { pool } from '$lib/server/db';
 import { shapeApiError } from '$lib/server/http';
 import { startWorker, stopWorker } from '$lib/server/mail/worker';
+import { startScheduler, stopScheduler } from '$lib/server/scheduler';
 
 const isApi = (path: string) => path.startsWith('/api/') || path.startsWith('/ical/');
 
@@ -39,8 +40,10 @@ export const handleError: HandleServerError = ({ error, event, status, message }
 if (!building) {
 	// Every app process drains the outbox; OUTBOX_WORKER=off leaves it to others.
 	if (process.env.OUTBOX_WORKER !== 'off') startWorker();
+	if (process.env.SCHEDULER !== 'off') startScheduler();
 	process.on('sveltekit:shutdown', () => {
 		stopWorker();
+		stopScheduler();
 		void pool.end();
 	});
 }

@@ -1,0 +1,31 @@
+// Periodic jobs every app process runs: maintenance falling due (and, later, no-shows).
+// Each job is safe to run from several processes at once (row locks and dedupe keys).
+import { notifyDueTasks } from './services/maintenance';
+
+const jobs: { name: string; run: () => Promise<unknown> }[] = [
+	{ name: 'maintenance due', run: () => notifyDueTasks() }
+];
+
+let timer: ReturnType<typeof setTimeout> | undefined;
+let stopped = false;
+
+async function tick() {
+	for (const job of jobs) {
+		try {
+			await job.run();
+		} catch (e) {
+			console.error(`[boxwright] scheduler: ${job.name}:`, e);
+		}
+	}
+	if (!stopped) timer = setTimeout(tick, Number(process.env.SCHEDULER_POLL_MS ?? 60_000));
+}
+
+export function startScheduler() {
+	stopped = false;
+	timer = setTimeout(tick, 1_000);
+}
+
+export function stopScheduler() {
+	stopped = true;
+	clearTimeout(timer);
+}
