@@ -1,5 +1,5 @@
 import { describe, expect, it } from 'vitest';
-import { looksBinary, parseReadingsCsv, parseTime } from './readings-csv';
+import { looksBinary, parseReadingsCsv, parseTime, timeParser } from './readings-csv';
 
 const tz = 'Europe/Berlin';
 const now = new Date('2026-12-01T12:00:00Z');
@@ -63,5 +63,29 @@ describe('parseTime', () => {
 		expect(parseTime('2026-07-01T12:00:00+02:00', tz)).toEqual(new Date('2026-07-01T10:00:00Z'));
 		expect(parseTime('2026-07-01 12:00:00', tz)).toEqual(new Date('2026-07-01T10:00:00Z'));
 		expect(parseTime('2026-07-01 12:00', tz)).toEqual(new Date('2026-07-01T10:00:00Z'));
+	});
+});
+
+describe('timeParser', () => {
+	it('reads every shape as the general parser does, across both clock changes', () => {
+		const fast = timeParser(tz);
+		const samples = [
+			'2026-11-30T10:00:00Z',
+			'2026-11-30 10:00:00Z',
+			'2026-11-30T10:00:00.250+01:00',
+			'2026-11-30T10:00:00+0100',
+			'2026-11-30T10:00+01',
+			'2026-11-30 10:00',
+			'2026-11-30T10:00:05',
+			'2026-10-25 01:59',
+			'2026-10-25 02:30', // the hour that happens twice: the first one, as luxon picks
+			'2026-10-25 03:00',
+			'2026-03-29 01:59',
+			'2026-03-29 02:30', // skipped when the clocks went forward
+			'2026-03-29 03:00',
+			'2026-02-30 10:00', // no such day
+			'2026-11-30 24:00'
+		];
+		for (const s of samples) expect([s, fast(s)]).toEqual([s, parseTime(s, tz)]);
 	});
 });

@@ -40,12 +40,66 @@ export function looksBinary(text: string): boolean {
 }
 
 const FORMATS = ['yyyy-MM-dd HH:mm:ss', 'yyyy-MM-dd HH:mm', 'yyyy-MM-dd HH:mm:ss.SSS'];
+const WITH_OFFSET =
+	/^(\d{4}-\d{2}-\d{2})[T ](\d{2}:\d{2}(?::\d{2}(?:\.\d{1,9})?)?)(Z|[+-]\d{2}(?::?\d{2})?)$/i;
+const LOCAL = /^(\d{4})-(\d{2})-(\d{2})[T ](\d{2}):(\d{2})(?::(\d{2})(?:\.(\d{1,3})\d*)?)?$/;
 
-/** The instant a log's time names, or a reason it names none. */
+/**
+ * A parser for one log: the common shapes are read without luxon (a sensor log has tens of
+ * thousands of rows). Local times take the zone's offset from a cache per hour; an hour in
+ * which the offset changes (a clock change) is worked out minute by minute with luxon.
+ */
+export function timeParser(tz: string): (value: string) => Date | string {
+	const hours = new Map<string, number | null>();
+	const offsetOfHour = (y: number, mo: number, d: number, h: number): number | null => {
+		const key = `${y}-${mo}-${d}-${h}`;
+		let offset = hours.get(key);
+		if (offset === undefined) {
+			const start = DateTime.fromObject({ year: y, month: mo, day: d, hour: h }, { zone: tz });
+			const end = start.set({ minute: 59 });
+			const whole =
+				start.isValid && start.hour === h && end.hour === h && start.offset === end.offset;
+			offset = whole ? start.offset : null;
+			hours.set(key, offset);
+		}
+		return offset;
+	};
+	return (value) => {
+		const text = value.trim();
+		const zoned = WITH_OFFSET.exec(text);
+		if (zoned) {
+			const zone =
+				zoned[3].toUpperCase() === 'Z'
+					? 'Z'
+					: zoned[3].replace(/^([+-]\d{2}):?(\d{2})?$/, (_, h, m) => `${h}:${m ?? '00'}`);
+			const ms = Date.parse(`${zoned[1]}T${zoned[2]}${zone}`);
+			if (!Number.isNaN(ms)) return new Date(ms);
+		}
+		const local = LOCAL.exec(text);
+		if (local) {
+			const [y, mo, d, h, mi] = local.slice(1, 6).map(Number);
+			const [se, ms] = [Number(local[6] ?? 0), Number((local[7] ?? '0').padEnd(3, '0'))];
+			const offset = offsetOfHour(y, mo, d, h);
+			const utc = Date.UTC(y, mo - 1, d, h, mi, se, ms);
+			const back = new Date(utc);
+			const real =
+				back.getUTCFullYear() === y && back.getUTCMonth() === mo - 1 && back.getUTCDate() === d;
+			if (offset !== null && real && h < 24 && mi < 60 && se < 60)
+				return new Date(utc - offset * 60_000);
+		}
+		return parseTime(text, tz);
+	};
+}
+
+/** The instant a log's time names, or a reason it names none (the slow, general path). */
 export function parseTime(value: string, tz: string): Date | string {
 	const text = value.trim();
 	if (!text) return 'the time is empty';
-	let dt = DateTime.fromISO(text, { zone: tz, setZone: false });
+	// RFC 3339 allows a space between the date and the time; ISO 8601 wants a T.
+	let dt = DateTime.fromISO(text.replace(/^(\d{4}-\d{2}-\d{2}) /, '$1T'), {
+		zone: tz,
+		setZone: false
+	});
 	for (const format of FORMATS) {
 		if (dt.isValid) break;
 		dt = DateTime.fromFormat(text, format, { zone: tz });
@@ -98,6 +152,7 @@ export function parseReadingsCsv(text: string, opts: { tz: string; now: Date }):
 	const rows: CsvReading[] = [];
 	const rejected: Rejected[] = [];
 	const seen = new Set<number>();
+	const timeOf = timeParser(opts.tz);
 	let duplicatesInFile = 0;
 	lines.forEach((cells, i) => {
 		const line = i + 2;
@@ -106,7 +161,7 @@ export function parseReadingsCsv(text: string, opts: { tz: string; now: Date }):
 			rejected.push({ line, reason: `expected ${header.length} columns, found ${cells.length}` });
 			return;
 		}
-		const when = parseTime(cells[at], opts.tz);
+		const when = timeOf(cells[at]);
 		if (typeof when === 'string') return void rejected.push({ line, reason: when });
 		if (when.getTime() > latest)
 			return void rejected.push({ line, reason: 'the time is in the future' });

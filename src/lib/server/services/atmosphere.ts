@@ -10,6 +10,7 @@ import {
 } from '$lib/domain/atmosphere';
 import type { AtmosphereState } from '$lib/domain/boxes';
 import { MAX_REJECTED_LISTED, parseReadingsCsv, type Rejected } from '$lib/domain/readings-csv';
+import { format } from 'mysql2';
 import { config } from '../config';
 import { db, type Transaction } from '../db';
 import { atmosphereReadings, boxes } from '../db/schema';
@@ -223,20 +224,8 @@ export async function importReadings(
 	const { value: inserted, state } = await withReadings(boxId, actor.id, async (tx) => {
 		let stored = 0;
 		for (let i = 0; i < fresh.length; i += BATCH) {
-			const [result] = await tx
-				.insert(atmosphereReadings)
-				.ignore()
-				.values(
-					fresh.slice(i, i + BATCH).map((r) => ({
-						boxId,
-						at: r.at,
-						o2Ppm: r.o2Ppm,
-						h2oPpm: r.h2oPpm,
-						source: 'csv' as const,
-						recordedBy: actor.id
-					}))
-				);
-			stored += result.affectedRows;
+			const [result] = await tx.execute(insertBatch(boxId, actor.id, fresh.slice(i, i + BATCH)));
+			stored += (result as unknown as { affectedRows: number }).affectedRows;
 		}
 		await audit(tx, {
 			actorId: actor.id,
@@ -257,12 +246,39 @@ export async function importReadings(
 	};
 }
 
+const utcText = (at: Date) => at.toISOString().slice(0, 19).replace('T', ' ');
+
+/**
+ * One multi-row INSERT IGNORE for a batch of imported readings. Built with mysql2's own
+ * escaping (every value is a number or a fixed-shape date string) rather than the query
+ * builder, which spends longer building 5,000-row statements than MariaDB takes to run them.
+ */
+function insertBatch(
+	boxId: number,
+	actorId: number,
+	rows: { at: Date; o2Ppm: number; h2oPpm: number }[]
+) {
+	const values = rows.map((r) => [boxId, utcText(r.at), r.o2Ppm, r.h2oPpm, 'csv', actorId]);
+	return sql.raw(
+		format(
+			'INSERT IGNORE INTO atmosphere_readings (box_id, at, o2_ppm, h2o_ppm, source, recorded_by) VALUES ?',
+			[values]
+		)
+	);
+}
+
 /** The rows whose second the box has no reading for yet. */
 async function withoutStored<R extends { at: Date }>(boxId: number, rows: R[]): Promise<R[]> {
 	if (!rows.length) return rows;
-	const times = rows.map((r) => r.at.getTime());
-	const from = new Date(Math.min(...times));
-	const to = new Date(Math.max(...times));
+	// A loop, not Math.min(...times): a year's log would overflow the argument list.
+	let first = Infinity;
+	let last = -Infinity;
+	for (const r of rows) {
+		first = Math.min(first, r.at.getTime());
+		last = Math.max(last, r.at.getTime());
+	}
+	const from = new Date(first);
+	const to = new Date(last);
 	const stored = await db
 		.select({ at: atmosphereReadings.at })
 		.from(atmosphereReadings)
