@@ -38,6 +38,19 @@ export function fail(
 	error(status, { code, message, details });
 }
 
+/** The contract's error as a response, for a route outside /api/ that answers a client. */
+export function errorResponse(
+	status: number,
+	message: string,
+	code = codeFor(status),
+	details?: unknown
+): Response {
+	return json(
+		{ error: { code, message, ...(details === undefined ? {} : { details }) } },
+		{ status }
+	);
+}
+
 export function invalidInput(
 	fields: Record<string, string>,
 	message = 'Some fields are not valid.'

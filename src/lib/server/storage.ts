@@ -13,9 +13,11 @@ import {
 	S3Client,
 	S3ServiceException
 } from '@aws-sdk/client-s3';
+import { MAX_DOCUMENT_BYTES } from '../domain/documents';
 
 export const MAX_PHOTO_BYTES = 5 * 1024 * 1024;
-export const MAX_DOCUMENT_BYTES = 20 * 1024 * 1024;
+// Defined beside the documents' other rules so the upload form can check it before sending.
+export { MAX_DOCUMENT_BYTES };
 
 const types: Record<string, string> = {
 	png: 'image/png',

@@ -1,5 +1,6 @@
 import { requireUser } from '$lib/server/guard';
 import { certificationsOf, listModules } from '$lib/server/services/training';
+import { documentsForModules, mayManageDocuments } from '$lib/server/services/documents';
 import type { PageServerLoad } from './$types';
 
 export const load: PageServerLoad = async (event) => {
@@ -12,6 +13,8 @@ export const load: PageServerLoad = async (event) => {
 			description: m.description,
 			prerequisites: m.prerequisites.map((p) => p.name),
 			trainers: m.trainers.map((t) => t.name)
-		}))
+		})),
+		documents: await documentsForModules(modules.map((m) => m.id)),
+		canManageDocuments: mayManageDocuments(user, 'module')
 	};
 };

@@ -12,6 +12,7 @@ import { boxOutages, getBox } from '$lib/server/services/boxes';
 import { attempt } from '$lib/server/services/errors';
 import { latestReadings, recordReading } from '$lib/server/services/atmosphere';
 import { checkReading } from '$lib/domain/atmosphere';
+import { documentsFor, mayManageDocuments } from '$lib/server/services/documents';
 import type { Actions, PageServerLoad } from './$types';
 
 export const load: PageServerLoad = async (event) => {
@@ -43,6 +44,8 @@ export const load: PageServerLoad = async (event) => {
 		description: box.description,
 		outages: await boxOutages(id),
 		readings: await latestReadings(id, 8),
+		documents: await documentsFor({ boxId: id }),
+		canManageDocuments: mayManageDocuments(user, 'box'),
 		gloves: await glovesOfBox(id),
 		gloveHistory: hasRole(user.role, 'manager') ? await gloveHistory(id) : [],
 		outageDefaults: outageDefaults()
