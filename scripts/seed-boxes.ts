@@ -12,6 +12,9 @@ import {
 	boxRequiredModules,
 	certifications,
 	gloves,
+	leakTests,
+	maintenanceLog,
+	maintenanceTasks,
 	modulePrerequisites,
 	moduleTrainers,
 	trainingModules
@@ -353,5 +356,74 @@ export async function seedBoxesAndBookings(
 	});
 	await db.insert(atmosphereReadings).values(readings);
 
-	return `${boxSeeds.length} boxes, ${modules.length} modules, ${certCount} certifications, ${kept.length} bookings, ${readings.length} readings`;
+	// Upkeep: each box has its routine; one purifier is overdue, one glove check due soon.
+	const manager = userIds.get('manager@example.org') ?? null;
+	const routine = [
+		{
+			kind: 'purifier_regeneration',
+			title: 'Regenerate the purifier',
+			intervalDays: 60,
+			outageMinutes: 480
+		},
+		{
+			kind: 'sensor_calibration',
+			title: 'Calibrate the O₂ and H₂O sensors',
+			intervalDays: 180,
+			outageMinutes: 60
+		},
+		{ kind: 'pump_oil', title: 'Change the vacuum pump oil', intervalDays: 180, outageMinutes: 60 },
+		{
+			kind: 'antechamber_seals',
+			title: 'Inspect the antechamber seals and doors',
+			intervalDays: 90,
+			outageMinutes: 0
+		},
+		{ kind: 'glove_inspection', title: 'Formal glove check', intervalDays: 7, outageMinutes: 0 }
+	] as const;
+	let taskCount = 0;
+	for (const [i, boxId] of boxIds.entries()) {
+		for (const [j, task] of routine.entries()) {
+			// Days since it was last done: Kestrel's purifier is overdue, Heron's gloves due in two days.
+			const ago =
+				i === 0 && j === 0
+					? 66
+					: i === 1 && j === 4
+						? 5
+						: Math.floor(task.intervalDays * (0.2 + 0.1 * ((i + j) % 5)));
+			const lastDone = now.minus({ days: ago }).set({ hour: 10, minute: 0 });
+			const [{ id }] = await db
+				.insert(maintenanceTasks)
+				.values({
+					boxId,
+					...task,
+					lastDoneAt: lastDone.toJSDate(),
+					nextDueAt: lastDone.plus({ days: task.intervalDays }).toJSDate(),
+					// The demo's overdue task was already announced; seeding sends no mail.
+					notifiedDueAt: lastDone.plus({ days: task.intervalDays }).toJSDate()
+				})
+				.$returningId();
+			await db
+				.insert(maintenanceLog)
+				.values({ taskId: id, doneAt: lastDone.toJSDate(), doneBy: manager });
+			taskCount++;
+		}
+		// A leak test last month by the pressure-change method; Tern's is borderline.
+		const rate = i === 2 ? 2.1e-3 : 3.2e-4 + i * 1e-4;
+		await db.insert(leakTests).values({
+			boxId,
+			method: 'pressure',
+			inputs: { p1Pa: 100_325, p2Pa: 100_325 + rate * 100_325, t1K: 293.15, t2K: 293.15, hours: 1 },
+			hourlyLeakRate: rate,
+			isoClass: rate <= 5e-4 ? 1 : rate < 2.5e-3 ? 2 : 3,
+			requiredClass: 3,
+			passed: true,
+			testedAt: now
+				.minus({ days: 20 + i })
+				.set({ hour: 9, minute: 0 })
+				.toJSDate(),
+			testedBy: manager
+		});
+	}
+
+	return `${boxSeeds.length} boxes, ${modules.length} modules, ${certCount} certifications, ${kept.length} bookings, ${readings.length} readings, ${taskCount} maintenance tasks`;
 }
