@@ -356,6 +356,11 @@ export async function seedBoxesAndBookings(
 	});
 	await db.insert(atmosphereReadings).values(readings);
 
+	// Each booking is billed to its booker's group.
+	await db.execute(
+		sql`UPDATE bookings b JOIN (SELECT user_id, MIN(group_id) AS group_id FROM group_memberships WHERE status = 'active' GROUP BY user_id) m ON m.user_id = b.user_id SET b.group_id = m.group_id WHERE b.group_id IS NULL`
+	);
+
 	// Upkeep: each box has its routine; one purifier is overdue, one glove check due soon.
 	const manager = userIds.get('manager@example.org') ?? null;
 	const routine = [

@@ -1,9 +1,11 @@
-// Periodic jobs every app process runs: maintenance falling due (and, later, no-shows).
+// Periodic jobs every app process runs: maintenance falling due, no-shows.
 // Each job is safe to run from several processes at once (row locks and dedupe keys).
 import { notifyDueTasks } from './services/maintenance';
+import { markNoShows } from './services/no-shows';
 
 const jobs: { name: string; run: () => Promise<unknown> }[] = [
-	{ name: 'maintenance due', run: () => notifyDueTasks() }
+	{ name: 'maintenance due', run: () => notifyDueTasks() },
+	{ name: 'no-shows', run: () => markNoShows() }
 ];
 
 let timer: ReturnType<typeof setTimeout> | undefined;

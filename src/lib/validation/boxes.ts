@@ -64,6 +64,13 @@ export const boxSchema = z
 			.max(4, 'Choose class 1 to 4.')
 			.default(3),
 		gloveChangeNeedsProof: z.coerce.boolean().default(false),
+		cancelWindowHours: z.coerce
+			.number({ error: 'Give the cancellation window in hours.' })
+			.int('Give whole hours.')
+			.min(0, 'The window cannot be negative.')
+			.max(720, 'At most 30 days.')
+			.default(24),
+		noShowGraceMin: minutes('the check-in grace time', 5, 240).default(15),
 		excludedClasses: z.array(z.enum(chemicalClassKeys as [string, ...string[]])).default([]),
 		requiredModuleIds: z.array(z.coerce.number().int().positive()).default([]),
 		ports: z.array(portSchema).max(12, 'At most 12 ports.').default([])

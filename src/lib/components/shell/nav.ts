@@ -15,7 +15,10 @@ export function navFor(role: Role, isPi: boolean): NavItem[] {
 	if (hasRole(role, 'trainer')) items.push({ href: '/manage/training', label: 'Certifications' });
 	if (isPi || hasRole(role, 'manager'))
 		items.push({ href: '/manage/approvals', label: 'Approvals' });
+	if (isPi || hasRole(role, 'manager')) items.push({ href: '/groups', label: 'Groups' });
+	if (hasRole(role, 'manager')) items.push({ href: '/manage/statements', label: 'Statements' });
 	if (hasRole(role, 'manager')) items.push({ href: '/manage/outbox', label: 'Outbox' });
+	if (hasRole(role, 'manager')) items.push({ href: '/reports', label: 'Reports' });
 	if (role === 'admin') items.push({ href: '/admin/users', label: 'Users and roles' });
 	items.push({ href: '/notifications', label: 'Notifications' });
 	items.push({ href: '/account', label: 'Account' });

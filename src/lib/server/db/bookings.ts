@@ -12,6 +12,7 @@ import { json } from './types';
 import { bookingStatuses, cancelCauses, outageKinds } from '../../domain/bookings';
 import { boxes } from './boxes';
 import { users } from './users';
+import { researchGroups } from './groups';
 
 export const bookings = mysqlTable(
 	'bookings',
@@ -23,6 +24,8 @@ export const bookings = mysqlTable(
 		userId: int()
 			.notNull()
 			.references(() => users.id, { onDelete: 'cascade' }),
+		/** The group the booking is billed to: the booker's group when it was made. */
+		groupId: int().references(() => researchGroups.id, { onDelete: 'set null' }),
 		startAt: datetime({ mode: 'date' }).notNull(),
 		endAt: datetime({ mode: 'date' }).notNull(),
 		/** endAt plus the box's purge time when volatile solvents are declared, else endAt. */
@@ -52,7 +55,8 @@ export const bookings = mysqlTable(
 	(t) => [
 		index('bookings_box_start_idx').on(t.boxId, t.startAt),
 		index('bookings_box_end_idx').on(t.boxId, t.blockedUntil),
-		index('bookings_user_start_idx').on(t.userId, t.startAt)
+		index('bookings_user_start_idx').on(t.userId, t.startAt),
+		index('bookings_group_start_idx').on(t.groupId, t.startAt)
 	]
 );
 

@@ -47,6 +47,10 @@ export const boxes = mysqlTable('boxes', {
 	requiredLeakClass: tinyint().notNull().default(3),
 	// A glove change ends only after a passing leak test or an in-spec reading.
 	gloveChangeNeedsProof: boolean().notNull().default(false),
+	// A cancellation by the booker this close to the start is billed as booked.
+	cancelWindowHours: smallint().notNull().default(24),
+	// Without a check-in this long after the start, a booking becomes a no-show.
+	noShowGraceMin: smallint().notNull().default(15),
 	createdAt: datetime({ mode: 'date' })
 		.notNull()
 		.default(sql`CURRENT_TIMESTAMP`)

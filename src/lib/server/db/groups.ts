@@ -1,4 +1,12 @@
-import { datetime, int, mysqlEnum, mysqlTable, uniqueIndex, varchar } from 'drizzle-orm/mysql-core';
+import {
+	boolean,
+	datetime,
+	int,
+	mysqlEnum,
+	mysqlTable,
+	uniqueIndex,
+	varchar
+} from 'drizzle-orm/mysql-core';
 import { sql } from 'drizzle-orm';
 import { users } from './users';
 
@@ -8,6 +16,8 @@ export const researchGroups = mysqlTable('research_groups', {
 	name: varchar({ length: 120 }).notNull().unique(),
 	piUserId: int().references(() => users.id, { onDelete: 'set null' }),
 	costCentre: varchar({ length: 40 }).notNull(),
+	/** Billed at the boxes' external rates (another institution or a company). */
+	external: boolean().notNull().default(false),
 	createdAt: datetime({ mode: 'date' })
 		.notNull()
 		.default(sql`CURRENT_TIMESTAMP`)

@@ -9,3 +9,4 @@ export * from './atmosphere';
 export * from './notifications';
 export * from './gloves';
 export * from './upkeep';
+export * from './billing';

@@ -99,6 +99,25 @@ export function bookingConfirmed(booking: IcsBooking, person: Person): Message {
 	};
 }
 
+/** The booker did not check in: the booking is a no-show and the rest of the slot is free. */
+export function bookingNoShow(booking: IcsBooking, person: Person, graceMin: number): Message {
+	const when = formatRange(booking.startAt, booking.endAt, config.facilityTz);
+	const lines = [
+		`Hello ${person.name},`,
+		`nobody checked in to your booking of ${booking.boxName} (room ${booking.room}) on ${when} within ${graceMin} minutes of its start, so it is recorded as a no-show and the rest of the time is free for others.`,
+		'A no-show is billed as booked. If you were at the box, tell the facility manager so the record can be put right.',
+		`Questions: ${config.facilityContact}`
+	];
+	return {
+		kind: 'booking_no_show',
+		subject: `No-show: ${booking.boxName}, ${when}`,
+		text: lines.join('\n'),
+		html: html(lines.map(escape)),
+		icsMethod: 'CANCEL',
+		ics: bookingInvite({ ...booking, sequence: booking.sequence }, 'CANCEL')
+	};
+}
+
 /** A plain notice to facility staff (alarms, damaged gloves). */
 export function staffNotice(title: string, body: string, link: string): Message {
 	const url = `${origin()}${link}`;

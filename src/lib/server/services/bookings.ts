@@ -8,6 +8,7 @@ import type { BookingInput } from '$lib/validation/bookings';
 import { config } from '../config';
 import { db, type Transaction } from '../db';
 import {
+	groupMemberships,
 	bookings,
 	boxes,
 	boxRequiredModules,
@@ -128,7 +129,11 @@ async function readGates(userId: number, boxId: number) {
 			.select({
 				email: users.email,
 				name: users.name,
-				emailConfirmations: users.emailConfirmations
+				emailConfirmations: users.emailConfirmations,
+				// The group billed for the booking: the booker's first active group.
+				groupId: sql<
+					number | null
+				>`(SELECT MIN(${groupMemberships.groupId}) FROM ${groupMemberships} WHERE ${groupMemberships.userId} = ${users.id} AND ${groupMemberships.status} = 'active')`
 			})
 			.from(users)
 			.where(eq(users.id, userId))
@@ -303,6 +308,7 @@ export async function createBooking(actor: Actor, input: BookingInput, now = new
 			const values = {
 				boxId: box.id,
 				userId: actor.id,
+				groupId: gates.person?.groupId ?? null,
 				startAt: input.start,
 				endAt: input.end,
 				blockedUntil,

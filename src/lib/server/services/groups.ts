@@ -1,6 +1,20 @@
-import { asc } from 'drizzle-orm';
+// Research groups: who leads them, who is in them, and what their people booked.
+import { and, asc, desc, eq, gte, inArray, lt, ne } from 'drizzle-orm';
+import { hasRole } from '$lib/domain/roles';
 import { db } from '../db';
-import { researchGroups } from '../db/schema';
+import {
+	bookings,
+	boxes,
+	certifications,
+	groupMemberships,
+	researchGroups,
+	trainingModules,
+	users
+} from '../db/schema';
+import type { Actor } from './accounts';
+import { audit } from './audit';
+import { forbidden, isDuplicateKey, notFound, ServiceError } from './errors';
+import { certificationState } from './training';
 
 /** Group names for the registration form (no PI or cost centre: that page is public). */
 export async function listGroupNames() {
@@ -8,4 +22,261 @@ export async function listGroupNames() {
 		.select({ id: researchGroups.id, name: researchGroups.name })
 		.from(researchGroups)
 		.orderBy(asc(researchGroups.name));
+}
+
+const groupColumns = {
+	id: researchGroups.id,
+	name: researchGroups.name,
+	costCentre: researchGroups.costCentre,
+	external: researchGroups.external,
+	piUserId: researchGroups.piUserId,
+	piName: users.name
+};
+
+/** Managers see every group; a PI the groups they lead; others none. */
+export async function groupsFor(actor: Actor) {
+	const base = db
+		.select(groupColumns)
+		.from(researchGroups)
+		.leftJoin(users, eq(users.id, researchGroups.piUserId))
+		.$dynamic();
+	const rows = hasRole(actor.role, 'manager')
+		? await base.orderBy(asc(researchGroups.name))
+		: await base.where(eq(researchGroups.piUserId, actor.id)).orderBy(asc(researchGroups.name));
+	return rows;
+}
+
+/**
+ * The group, when the actor may act on it: a manager, or the group's PI. Anyone else gets
+ * 403 (the group exists: its name is on the public registration form anyway).
+ */
+export async function groupFor(actor: Actor, groupId: number) {
+	const [group] = await db
+		.select(groupColumns)
+		.from(researchGroups)
+		.leftJoin(users, eq(users.id, researchGroups.piUserId))
+		.where(eq(researchGroups.id, groupId));
+	if (!group) throw notFound('The group');
+	if (!hasRole(actor.role, 'manager') && group.piUserId !== actor.id)
+		throw forbidden('Only the group’s PI or a facility manager can see this group.');
+	return group;
+}
+
+/** Members (active and asking to join) with where their training stands. */
+export async function membersOf(groupId: number, now = new Date()) {
+	const members = await db
+		.select({
+			userId: users.id,
+			name: users.name,
+			email: users.email,
+			accountStatus: users.status,
+			status: groupMemberships.status,
+			requestedAt: groupMemberships.requestedAt
+		})
+		.from(groupMemberships)
+		.innerJoin(users, eq(users.id, groupMemberships.userId))
+		.where(and(eq(groupMemberships.groupId, groupId), ne(groupMemberships.status, 'removed')))
+		.orderBy(asc(users.name));
+	const ids = members.map((m) => m.userId);
+	const certs = ids.length
+		? await db
+				.select({
+					userId: certifications.userId,
+					moduleId: certifications.moduleId,
+					moduleName: trainingModules.name,
+					grantedAt: certifications.grantedAt,
+					expiresAt: certifications.expiresAt,
+					revokedAt: certifications.revokedAt
+				})
+				.from(certifications)
+				.innerJoin(trainingModules, eq(trainingModules.id, certifications.moduleId))
+				.where(inArray(certifications.userId, ids))
+				.orderBy(desc(certifications.grantedAt))
+		: [];
+	return members.map((m) => {
+		// The newest certification per module says where the member stands.
+		const seen = new Set<number>();
+		const held = certs
+			.filter((c) => c.userId === m.userId && !seen.has(c.moduleId) && seen.add(c.moduleId))
+			.map((c) => ({
+				moduleName: c.moduleName,
+				expiresAt: c.expiresAt,
+				state: certificationState(c, now)
+			}));
+		return { ...m, certifications: held };
+	});
+}
+
+/** The group's bookings from `from` to `to`, newest first. */
+export async function groupBookings(groupId: number, from: Date, to: Date) {
+	return db
+		.select({
+			id: bookings.id,
+			boxName: boxes.name,
+			userName: users.name,
+			startAt: bookings.startAt,
+			endAt: bookings.endAt,
+			status: bookings.status,
+			cancelCause: bookings.cancelCause,
+			purpose: bookings.purpose,
+			checkInAt: bookings.checkInAt,
+			checkOutAt: bookings.checkOutAt
+		})
+		.from(bookings)
+		.innerJoin(boxes, eq(boxes.id, bookings.boxId))
+		.innerJoin(users, eq(users.id, bookings.userId))
+		.where(and(eq(bookings.groupId, groupId), gte(bookings.endAt, from), lt(bookings.startAt, to)))
+		.orderBy(desc(bookings.startAt))
+		.limit(500);
+}
+
+async function membership(groupId: number, userId: number) {
+	const [row] = await db
+		.select()
+		.from(groupMemberships)
+		.where(and(eq(groupMemberships.groupId, groupId), eq(groupMemberships.userId, userId)));
+	return row ?? null;
+}
+
+/** The PI or a manager removes a member; their past bookings stay billed to the group. */
+export async function removeMember(actor: Actor, groupId: number, userId: number) {
+	const group = await groupFor(actor, groupId);
+	if (group.piUserId === userId)
+		throw new ServiceError(409, 'The PI cannot be removed; a manager can name another PI first.');
+	const row = await membership(groupId, userId);
+	if (!row || row.status === 'removed') throw notFound('That member');
+	await db.transaction(async (tx) => {
+		await tx
+			.update(groupMemberships)
+			.set({ status: 'removed', decidedAt: new Date(), decidedBy: actor.id })
+			.where(eq(groupMemberships.id, row.id));
+		await audit(tx, {
+			actorId: actor.id,
+			action: 'group.member_removed',
+			entity: 'group',
+			entityId: groupId,
+			details: { userId }
+		});
+	});
+}
+
+/** The PI or a manager decides an active user's request to join (registrations go through approvals). */
+export async function decideMembership(
+	actor: Actor,
+	groupId: number,
+	userId: number,
+	approve: boolean
+) {
+	await groupFor(actor, groupId);
+	const row = await membership(groupId, userId);
+	if (!row || row.status !== 'pending') throw notFound('That request');
+	const [person] = await db
+		.select({ status: users.status })
+		.from(users)
+		.where(eq(users.id, userId));
+	if (person?.status === 'pending')
+		throw new ServiceError(409, 'This is a new registration; decide it on the approvals page.');
+	await db.transaction(async (tx) => {
+		await tx
+			.update(groupMemberships)
+			.set({ status: approve ? 'active' : 'removed', decidedAt: new Date(), decidedBy: actor.id })
+			.where(eq(groupMemberships.id, row.id));
+		await audit(tx, {
+			actorId: actor.id,
+			action: approve ? 'group.member_approved' : 'group.member_declined',
+			entity: 'group',
+			entityId: groupId,
+			details: { userId }
+		});
+	});
+}
+
+/** A signed-in person asks to join another group; its PI decides. */
+export async function requestMembership(actor: Actor, groupId: number) {
+	const [group] = await db
+		.select({ id: researchGroups.id })
+		.from(researchGroups)
+		.where(eq(researchGroups.id, groupId));
+	if (!group) throw notFound('The group');
+	const row = await membership(groupId, actor.id);
+	if (row?.status === 'active') throw new ServiceError(409, 'You are already in this group.');
+	if (row?.status === 'pending') throw new ServiceError(409, 'Your request is already waiting.');
+	await db.transaction(async (tx) => {
+		if (row)
+			await tx
+				.update(groupMemberships)
+				.set({ status: 'pending', requestedAt: new Date(), decidedAt: null, decidedBy: null })
+				.where(eq(groupMemberships.id, row.id));
+		else await tx.insert(groupMemberships).values({ groupId, userId: actor.id, status: 'pending' });
+		await audit(tx, {
+			actorId: actor.id,
+			action: 'group.join_requested',
+			entity: 'group',
+			entityId: groupId
+		});
+	});
+}
+
+export type GroupInput = {
+	name: string;
+	costCentre: string;
+	piUserId: number | null;
+	external: boolean;
+};
+
+/** Managers create and edit groups; the PI named becomes an active member. */
+export async function saveGroup(actor: Actor, input: GroupInput, groupId?: number) {
+	if (!hasRole(actor.role, 'manager')) throw forbidden('Only a manager can create or edit groups.');
+	try {
+		return await db.transaction(async (tx) => {
+			let id = groupId;
+			if (id) {
+				const [found] = await tx
+					.select({ id: researchGroups.id })
+					.from(researchGroups)
+					.where(eq(researchGroups.id, id));
+				if (!found) throw notFound('The group');
+				await tx.update(researchGroups).set(input).where(eq(researchGroups.id, id));
+			} else {
+				[{ id }] = await tx.insert(researchGroups).values(input).$returningId();
+			}
+			if (input.piUserId) {
+				const [pi] = await tx
+					.select({ id: users.id })
+					.from(users)
+					.where(and(eq(users.id, input.piUserId), eq(users.status, 'active')));
+				if (!pi)
+					throw new ServiceError(400, 'Choose an active person as PI.', {
+						fields: { piUserId: 'Choose an active person as PI.' }
+					});
+				await tx
+					.insert(groupMemberships)
+					.values({ groupId: id!, userId: input.piUserId, status: 'active' })
+					.onDuplicateKeyUpdate({ set: { status: 'active' } });
+			}
+			await audit(tx, {
+				actorId: actor.id,
+				action: groupId ? 'group.updated' : 'group.created',
+				entity: 'group',
+				entityId: id!,
+				details: input
+			});
+			return id!;
+		});
+	} catch (e) {
+		if (isDuplicateKey(e))
+			throw new ServiceError(409, 'A group of that name exists.', {
+				fields: { name: 'A group of that name exists.' }
+			});
+		throw e;
+	}
+}
+
+/** Active people, for choosing a PI. */
+export async function activePeople() {
+	return db
+		.select({ id: users.id, name: users.name, email: users.email })
+		.from(users)
+		.where(eq(users.status, 'active'))
+		.orderBy(asc(users.name));
 }

@@ -20,6 +20,8 @@ const defaults = {
 	needsApproval: false,
 	requiredLeakClass: 3,
 	gloveChangeNeedsProof: false,
+	cancelWindowHours: 24,
+	noShowGraceMin: 15,
 	o2WarnPpm: 1,
 	o2AlarmPpm: 10,
 	h2oWarnPpm: 1,

@@ -1,0 +1,418 @@
+// Usage and recharge: what a research group is billed for a month of box time. Pure: no I/O,
+// no clock of its own; the caller loads the group's bookings and picks each one's rate.
+//
+// Billing policy (common practice for shared instruments, a facility setting in spirit):
+// - A month is YYYY-MM in the facility's zone, from local midnight on the 1st to local
+//   midnight on the next 1st. Hours are real elapsed hours, so the night summer time ends
+//   bills one hour more than the wall clock shows, and the night it starts one hour less.
+// - Booked time is billed, not used time: a box held for a slot is unavailable to everyone
+//   else for it, whether or not the holder works the whole slot.
+// - Billed in full: confirmed or completed bookings (checked in or not; bookings from before
+//   check-in existed have none), no-shows, and cancellations by the user made inside the
+//   box's late-cancellation window (later than start − window) or after the start.
+// - Not billed: cancellations by the user before the window, cancellations by a manager,
+//   cancellations for an outage (never), and bookings still waiting for approval. A
+//   cancellation whose cause or time was not recorded is not billed either: nothing shows
+//   it was late.
+// - A booking that spans a month boundary is split: each month bills the hours inside it.
+// - Hours used run from check-in to check-out (or to the booked end if nobody checked out),
+//   clipped to the booked slot; they are reported beside the billed hours, not billed.
+// - Each line's amount is its exact billed hours × its rate, rounded to the cent (half up);
+//   the month's amount is the sum of the rounded line amounts, so a statement adds up. Hours
+//   are shown to 2 decimals; totals of hours are summed from exact values, then rounded.
+import { DateTime } from 'luxon';
+import type { BookingStatus, CancelCause } from './bookings';
+import { local } from './time';
+
+/** Minutes after the start with no check-in before a confirmed booking counts as a no-show. */
+export const NO_SHOW_GRACE_MIN = 15;
+
+/** The highest hourly rate a box may carry: a guard against typos, not a business rule. */
+export const MAX_RATE = 100_000;
+
+export type UsageBooking = {
+	id: number;
+	boxId: number;
+	boxName: string;
+	userName: string;
+	startAt: Date;
+	endAt: Date;
+	status: BookingStatus;
+	cancelCause: CancelCause | null;
+	cancelledAt: Date | null;
+	checkInAt: Date | null;
+	checkOutAt: Date | null;
+	/** The hourly rate that applies: the box's internal or external rate, chosen by the caller. */
+	rate: number;
+	/** The box's late-cancellation window, in hours. */
+	cancelWindowHours: number;
+};
+
+export type ChargeKind =
+	| 'used'
+	| 'booked_not_checked_in'
+	| 'no_show'
+	| 'late_cancellation'
+	| 'cancelled'
+	| 'outage_cancelled'
+	| 'manager_cancelled'
+	| 'pending';
+
+export const chargeLabel: Record<ChargeKind, string> = {
+	used: 'Used',
+	booked_not_checked_in: 'Booked, not checked in',
+	no_show: 'No-show',
+	late_cancellation: 'Late cancellation',
+	cancelled: 'Cancelled in time',
+	outage_cancelled: 'Cancelled for an outage',
+	manager_cancelled: 'Cancelled by a manager',
+	pending: 'Waiting for approval'
+};
+
+export type Charge = { kind: ChargeKind; billable: boolean; reason: string };
+
+export type MonthBounds = { start: Date; end: Date };
+
+export type Line = {
+	bookingId: number;
+	boxId: number;
+	boxName: string;
+	userName: string;
+	startAt: Date;
+	endAt: Date;
+	kind: ChargeKind;
+	reason: string;
+	/** Hours of the booking inside this month, to 2 decimals. */
+	bookedHours: number;
+	usedHours: number;
+	/** bookedHours when the booking is billable, else 0. */
+	billedHours: number;
+	rate: number;
+	/** Exact billed hours × rate, rounded to the cent. */
+	amount: number;
+};
+
+export type Totals = {
+	bookedHours: number;
+	usedHours: number;
+	billedHours: number;
+	amount: number;
+};
+
+export type BoxTotals = Totals & { boxId: number; boxName: string };
+
+export type Statement = {
+	month: string;
+	/** The facility zone the month and the CSV's times are in. */
+	tz: string;
+	start: Date;
+	end: Date;
+	lines: Line[];
+	totals: Totals;
+	/** The same totals per box, by box name. */
+	byBox: BoxTotals[];
+};
+
+const HOUR_MS = 3_600_000;
+
+/** Half up to `places` decimals; toPrecision first so 1.005 (really 1.00499…) rounds to 1.01. */
+function round(x: number, places: number): number {
+	const f = 10 ** places;
+	return Math.round(Number((x * f).toPrecision(12))) / f;
+}
+
+export const roundCents = (x: number) => round(x, 2);
+
+/** "YYYY-MM" with a year from 2000 to 2100, or null. */
+export function parseMonth(text: string): string | null {
+	const m = /^(\d{4})-(\d{2})$/.exec(text);
+	if (!m) return null;
+	const year = Number(m[1]);
+	const month = Number(m[2]);
+	if (year < 2000 || year > 2100 || month < 1 || month > 12) return null;
+	return text;
+}
+
+function firstOfMonth(year: number, month: number, tz: string): DateTime {
+	// Where local midnight does not exist (a zone that changes its clocks at 00:00), luxon
+	// moves forward to the first wall-clock time that does: the month's first instant.
+	const dt = DateTime.fromObject({ year, month, day: 1 }, { zone: tz });
+	if (!dt.isValid) throw new Error(`Unknown time zone “${tz}”.`);
+	return dt;
+}
+
+/** Local midnight on the 1st to local midnight on the next 1st, as instants. */
+export function monthBounds(month: string, tz: string): MonthBounds {
+	if (parseMonth(month) === null) throw new Error(`Not a month (YYYY-MM): “${month}”.`);
+	const [year, m] = month.split('-').map(Number);
+	return {
+		start: firstOfMonth(year, m, tz).toJSDate(),
+		end: (m === 12 ? firstOfMonth(year + 1, 1, tz) : firstOfMonth(year, m + 1, tz)).toJSDate()
+	};
+}
+
+/** Is the month over (and so its statement final) at `now`? */
+export function monthIsOver(month: string, tz: string, now: Date): boolean {
+	return now >= monthBounds(month, tz).end;
+}
+
+/** Real elapsed hours of [startAt, endAt) inside the month's bounds. */
+export function hoursInMonth(startAt: Date, endAt: Date, bounds: MonthBounds): number {
+	const a = Math.max(startAt.getTime(), bounds.start.getTime());
+	const b = Math.min(endAt.getTime(), bounds.end.getTime());
+	return b > a ? (b - a) / HOUR_MS : 0;
+}
+
+/** Hours checked in, from check-in to check-out (or the booked end), within the slot and month. */
+export function usedHoursInMonth(booking: UsageBooking, bounds: MonthBounds): number {
+	if (!booking.checkInAt) return 0;
+	const from = Math.max(booking.checkInAt.getTime(), booking.startAt.getTime());
+	const to = Math.min((booking.checkOutAt ?? booking.endAt).getTime(), booking.endAt.getTime());
+	if (to <= from) return 0;
+	return hoursInMonth(new Date(from), new Date(to), bounds);
+}
+
+/** "45 min", "3 h", "2 h 30 min", "2 d 15 h": a lead time in words. */
+function duration(minutes: number): string {
+	const m = Math.round(minutes);
+	if (m < 60) return `${m} min`;
+	if (m < 48 * 60) {
+		const h = Math.floor(m / 60);
+		return m % 60 ? `${h} h ${m % 60} min` : `${h} h`;
+	}
+	const d = Math.floor(m / 1440);
+	const h = Math.floor((m % 1440) / 60);
+	return h ? `${d} d ${h} h` : `${d} d`;
+}
+
+function userCancellation(b: UsageBooking): Charge {
+	if (!b.cancelledAt)
+		return {
+			kind: 'cancelled',
+			billable: false,
+			reason: 'Cancelled (time not recorded): not billed.'
+		};
+	const leadMin = (b.startAt.getTime() - b.cancelledAt.getTime()) / 60_000;
+	const windowMin = b.cancelWindowHours * 60;
+	const window = `the ${duration(windowMin)} window`;
+	if (leadMin <= 0) {
+		const when = leadMin === 0 ? 'at the start' : `${duration(-leadMin)} after the start`;
+		return {
+			kind: 'late_cancellation',
+			billable: true,
+			reason: `Cancelled ${when}: billed as booked.`
+		};
+	}
+	if (leadMin < windowMin) {
+		return {
+			kind: 'late_cancellation',
+			billable: true,
+			reason: `Cancelled ${duration(leadMin)} before the start, inside ${window}: billed as booked.`
+		};
+	}
+	return {
+		kind: 'cancelled',
+		billable: false,
+		reason:
+			windowMin > 0
+				? `Cancelled ${duration(leadMin)} before the start, before ${window}: not billed.`
+				: `Cancelled ${duration(leadMin)} before the start: not billed.`
+	};
+}
+
+/** How a booking is charged, and why, in words. */
+export function chargeOf(b: UsageBooking): Charge {
+	switch (b.status) {
+		case 'confirmed':
+		case 'completed':
+			return b.checkInAt
+				? {
+						kind: 'used',
+						billable: true,
+						reason: 'Checked in: the booked time is billed, not the time used.'
+					}
+				: {
+						kind: 'booked_not_checked_in',
+						billable: true,
+						reason: 'Not checked in: billed as booked.'
+					};
+		case 'no_show':
+			return {
+				kind: 'no_show',
+				billable: true,
+				reason: 'No-show: the booked time is billed in full.'
+			};
+		case 'pending':
+			return { kind: 'pending', billable: false, reason: 'Waiting for approval: not billed.' };
+		case 'cancelled':
+			if (b.cancelCause === 'outage')
+				return {
+					kind: 'outage_cancelled',
+					billable: false,
+					reason: 'Cancelled because the box was out of service: never billed.'
+				};
+			if (b.cancelCause === 'manager')
+				return {
+					kind: 'manager_cancelled',
+					billable: false,
+					reason: 'Cancelled by a manager: not billed.'
+				};
+			if (b.cancelCause === 'user') return userCancellation(b);
+			return { kind: 'cancelled', billable: false, reason: 'Cancelled: not billed.' };
+	}
+}
+
+/**
+ * True when a confirmed booking has gone `graceMinutes` past its start without a check-in and
+ * has not ended: the caller then marks it a no-show and frees the rest of its slot.
+ */
+export function noShowDue(
+	b: Pick<UsageBooking, 'status' | 'startAt' | 'endAt' | 'checkInAt'>,
+	graceMinutes: number,
+	now: Date
+): boolean {
+	if (b.status !== 'confirmed' || b.checkInAt) return false;
+	return now.getTime() >= b.startAt.getTime() + graceMinutes * 60_000 && now < b.endAt;
+}
+
+/** Why an hourly rate cannot be saved, or null when it can. */
+export function checkRate(x: number): string | null {
+	if (!Number.isFinite(x)) return 'The rate must be a number.';
+	if (x < 0) return 'The rate cannot be negative.';
+	if (x > MAX_RATE) return 'The rate cannot be more than 100,000 an hour.';
+	return null;
+}
+
+type Sums = { booked: number; used: number; billed: number; amount: number };
+
+const totalsOf = (s: Sums): Totals => ({
+	bookedHours: round(s.booked, 2),
+	usedHours: round(s.used, 2),
+	billedHours: round(s.billed, 2),
+	amount: roundCents(s.amount)
+});
+
+/** The month's statement for the given bookings (one group's, as the caller chooses). */
+export function statement(bookings: UsageBooking[], month: string, tz: string): Statement {
+	const bounds = monthBounds(month, tz);
+	const inMonth = bookings
+		.filter((b) => b.startAt < bounds.end && b.endAt > bounds.start)
+		.sort((a, b) => a.startAt.getTime() - b.startAt.getTime() || a.id - b.id);
+
+	const all: Sums = { booked: 0, used: 0, billed: 0, amount: 0 };
+	const boxes = new Map<number, Sums & { boxName: string }>();
+	const lines = inMonth.map((b): Line => {
+		const charge = chargeOf(b);
+		const booked = hoursInMonth(b.startAt, b.endAt, bounds);
+		const used = usedHoursInMonth(b, bounds);
+		const billed = charge.billable ? booked : 0;
+		const amount = roundCents(billed * b.rate);
+		const box = boxes.get(b.boxId) ?? {
+			boxName: b.boxName,
+			booked: 0,
+			used: 0,
+			billed: 0,
+			amount: 0
+		};
+		for (const s of [all, box]) {
+			s.booked += booked;
+			s.used += used;
+			s.billed += billed;
+			s.amount += amount;
+		}
+		boxes.set(b.boxId, box);
+		return {
+			bookingId: b.id,
+			boxId: b.boxId,
+			boxName: b.boxName,
+			userName: b.userName,
+			startAt: b.startAt,
+			endAt: b.endAt,
+			kind: charge.kind,
+			reason: charge.reason,
+			bookedHours: round(booked, 2),
+			usedHours: round(used, 2),
+			billedHours: round(billed, 2),
+			rate: b.rate,
+			amount
+		};
+	});
+
+	return {
+		month,
+		tz,
+		start: bounds.start,
+		end: bounds.end,
+		lines,
+		totals: totalsOf(all),
+		byBox: [...boxes]
+			.map(([boxId, s]) => ({ boxId, boxName: s.boxName, ...totalsOf(s) }))
+			.sort((a, b) => a.boxName.localeCompare(b.boxName) || a.boxId - b.boxId)
+	};
+}
+
+export const STATEMENT_CSV_HEADER =
+	'booking_id,box,booked_by,start,end,status,reason,booked_hours,used_hours,billed_hours,rate,amount';
+
+/**
+ * One RFC 4180 field. Text that a spreadsheet would run as a formula (a leading =, +, -, @,
+ * tab or CR) gets a leading apostrophe: names come from users, and statements are opened in
+ * spreadsheets (OWASP, CSV injection).
+ */
+function field(text: string): string {
+	const safe = /^[=+\-@\t\r]/.test(text) ? `'${text}` : text;
+	return /[",\r\n]/.test(safe) ? `"${safe.replaceAll('"', '""')}"` : safe;
+}
+
+const num = (x: number) => x.toFixed(2);
+
+/**
+ * ISO 8601 with the facility zone's offset, to the second: 2026-10-25T01:00:00+02:00. A
+ * statement read back from a JSON snapshot carries its times as strings; those work too.
+ */
+const isoSeconds = (at: Date | string, tz: string) =>
+	local(new Date(at), tz).toISO({ suppressMilliseconds: true }) ?? '';
+
+/**
+ * The statement as CSV (RFC 4180: CRLF line ends, quoted fields): one line per booking, then
+ * a `total` line that carries the group and month in its reason column.
+ */
+export function statementCsv(s: Statement, groupName: string): string {
+	const rows = [STATEMENT_CSV_HEADER];
+	for (const l of s.lines) {
+		rows.push(
+			[
+				String(l.bookingId),
+				field(l.boxName),
+				field(l.userName),
+				isoSeconds(l.startAt, s.tz),
+				isoSeconds(l.endAt, s.tz),
+				l.kind,
+				field(l.reason),
+				num(l.bookedHours),
+				num(l.usedHours),
+				num(l.billedHours),
+				num(l.rate),
+				num(l.amount)
+			].join(',')
+		);
+	}
+	const t = s.totals;
+	rows.push(
+		[
+			'total',
+			'',
+			'',
+			'',
+			'',
+			'',
+			field(`${groupName} ${s.month}`),
+			num(t.bookedHours),
+			num(t.usedHours),
+			num(t.billedHours),
+			'',
+			num(t.amount)
+		].join(',')
+	);
+	return rows.map((r) => `${r}\r\n`).join('');
+}

@@ -1,0 +1,190 @@
+// Monthly statements per group: worked out from the bookings while a month is open, read
+// from the snapshot taken when a manager closed it, so closed figures never change.
+import { and, asc, desc, eq, gt, lt } from 'drizzle-orm';
+import { DateTime } from 'luxon';
+import { hasRole } from '$lib/domain/roles';
+import {
+	monthBounds,
+	monthIsOver,
+	parseMonth,
+	statement,
+	type Statement,
+	type UsageBooking
+} from '$lib/domain/usage';
+import { config } from '../config';
+import { db, type Transaction } from '../db';
+import {
+	bookings,
+	boxes,
+	closedMonths,
+	researchGroups,
+	statementSnapshots,
+	users
+} from '../db/schema';
+import type { Actor } from './accounts';
+import { audit } from './audit';
+import { forbidden, ServiceError } from './errors';
+import { groupFor } from './groups';
+
+type GroupRef = { id: number; external: boolean };
+
+/** The month named, or a 400 saying how to write one. */
+export function monthParam(text: string): string {
+	const month = parseMonth(text);
+	if (!month)
+		throw new ServiceError(400, 'Give the month as YYYY-MM, e.g. 2026-10.', {
+			fields: { month: 'Give the month as YYYY-MM.' }
+		});
+	return month;
+}
+
+/** The group's bookings that touch the month, each with the rate that applies to the group. */
+async function usageBookings(
+	q: Transaction | typeof db,
+	group: GroupRef,
+	month: string
+): Promise<UsageBooking[]> {
+	const { start, end } = monthBounds(month, config.facilityTz);
+	const rows = await q
+		.select({
+			id: bookings.id,
+			boxId: bookings.boxId,
+			boxName: boxes.name,
+			userName: users.name,
+			startAt: bookings.startAt,
+			endAt: bookings.endAt,
+			status: bookings.status,
+			cancelCause: bookings.cancelCause,
+			cancelledAt: bookings.cancelledAt,
+			checkInAt: bookings.checkInAt,
+			checkOutAt: bookings.checkOutAt,
+			rateInternal: boxes.rateInternal,
+			rateExternal: boxes.rateExternal,
+			cancelWindowHours: boxes.cancelWindowHours
+		})
+		.from(bookings)
+		.innerJoin(boxes, eq(boxes.id, bookings.boxId))
+		.innerJoin(users, eq(users.id, bookings.userId))
+		.where(
+			and(eq(bookings.groupId, group.id), lt(bookings.startAt, end), gt(bookings.endAt, start))
+		)
+		.orderBy(asc(bookings.startAt));
+	return rows.map(({ rateInternal, rateExternal, ...b }) => ({
+		...b,
+		rate: group.external ? rateExternal : rateInternal
+	}));
+}
+
+/** A statement read back from JSON has its instants as strings. */
+function revive(s: Statement): Statement {
+	const date = (v: Date | string) => new Date(v);
+	return {
+		...s,
+		start: date(s.start),
+		end: date(s.end),
+		lines: s.lines.map((l) => ({ ...l, startAt: date(l.startAt), endAt: date(l.endAt) }))
+	};
+}
+
+async function closedMonth(month: string) {
+	const [row] = await db
+		.select({ closedAt: closedMonths.closedAt, closedBy: users.name })
+		.from(closedMonths)
+		.leftJoin(users, eq(users.id, closedMonths.closedBy))
+		.where(eq(closedMonths.month, month));
+	return row ?? null;
+}
+
+/**
+ * A group's statement for a month that is over: its PI's or a manager's to see. A closed
+ * month comes from its snapshot; an open one is worked out now and may still change.
+ */
+export async function statementFor(
+	actor: Actor,
+	groupId: number,
+	monthText: string,
+	now = new Date()
+) {
+	const group = await groupFor(actor, groupId);
+	const month = monthParam(monthText);
+	if (!monthIsOver(month, config.facilityTz, now))
+		throw new ServiceError(
+			422,
+			`${month} is not over yet; its statement can be drawn up from ${DateTime.fromJSDate(monthBounds(month, config.facilityTz).end).setZone(config.facilityTz).toFormat('d LLLL yyyy')}.`,
+			undefined,
+			'month_not_over'
+		);
+	const closed = await closedMonth(month);
+	if (closed) {
+		const [snap] = await db
+			.select({ statement: statementSnapshots.statement })
+			.from(statementSnapshots)
+			.where(and(eq(statementSnapshots.month, month), eq(statementSnapshots.groupId, groupId)));
+		// A group with no snapshot had nothing to bill when the month was closed.
+		const figures = snap
+			? revive(snap.statement as Statement)
+			: statement([], month, config.facilityTz);
+		return { group, statement: figures, closed };
+	}
+	return {
+		group,
+		statement: statement(await usageBookings(db, group, month), month, config.facilityTz),
+		closed: null
+	};
+}
+
+/** The month so far, for the PI's dashboard: provisional, never a statement. */
+export async function usageThisMonth(group: GroupRef, now = new Date()) {
+	const month = DateTime.fromJSDate(now).setZone(config.facilityTz).toFormat('yyyy-MM');
+	return statement(await usageBookings(db, group, month), month, config.facilityTz);
+}
+
+/** Closes a month that is over: every group's statement is frozen as it stands now. */
+export async function closeMonth(actor: Actor, monthText: string, now = new Date()) {
+	if (!hasRole(actor.role, 'manager')) throw forbidden('Only a manager can close a month.');
+	const month = monthParam(monthText);
+	if (!monthIsOver(month, config.facilityTz, now))
+		throw new ServiceError(422, `${month} is not over yet.`, undefined, 'month_not_over');
+	return db.transaction(async (tx) => {
+		const [already] = await tx
+			.select()
+			.from(closedMonths)
+			.where(eq(closedMonths.month, month))
+			.for('update');
+		if (already) throw new ServiceError(409, `${month} is already closed.`);
+		await tx.insert(closedMonths).values({ month, closedBy: actor.id, closedAt: now });
+		const groups = await tx
+			.select({ id: researchGroups.id, external: researchGroups.external })
+			.from(researchGroups);
+		let frozen = 0;
+		for (const group of groups) {
+			const figures = statement(await usageBookings(tx, group, month), month, config.facilityTz);
+			if (!figures.lines.length) continue;
+			await tx.insert(statementSnapshots).values({ month, groupId: group.id, statement: figures });
+			frozen++;
+		}
+		await audit(tx, {
+			actorId: actor.id,
+			action: 'month.closed',
+			entity: 'month',
+			entityId: month,
+			details: { groups: frozen }
+		});
+		return { month, groups: frozen };
+	});
+}
+
+/** The last twelve months that are over, each closed or not. */
+export async function recentMonths(now = new Date()) {
+	const closed = await db
+		.select({ month: closedMonths.month, closedAt: closedMonths.closedAt, closedBy: users.name })
+		.from(closedMonths)
+		.leftJoin(users, eq(users.id, closedMonths.closedBy))
+		.orderBy(desc(closedMonths.month));
+	const current = DateTime.fromJSDate(now).setZone(config.facilityTz).startOf('month');
+	return Array.from({ length: 12 }, (_, i) => {
+		const month = current.minus({ months: i + 1 }).toFormat('yyyy-MM');
+		const row = closed.find((c) => c.month === month);
+		return { month, closedAt: row?.closedAt ?? null, closedBy: row?.closedBy ?? null };
+	});
+}

@@ -1,0 +1,15 @@
+import { error } from '@sveltejs/kit';
+import { requireUser } from '$lib/server/guard';
+import { idParam } from '$lib/server/params';
+import { attempt } from '$lib/server/services/errors';
+import { statementFor } from '$lib/server/services/statements';
+import type { PageServerLoad } from './$types';
+
+export const load: PageServerLoad = async (event) => {
+	const user = requireUser(event);
+	const groupId = idParam(event.params.id, 'The group');
+	const found = await attempt(() => statementFor(user, groupId, event.params.month));
+	if (!found.ok)
+		error(found.error.status, { message: found.error.message, code: found.error.code });
+	return found.value;
+};

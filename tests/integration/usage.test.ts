@@ -1,0 +1,248 @@
+// Statements, month closing and no-shows against the real database and app.
+// The billing rules are the facility policy written down in src/lib/domain/usage.ts
+// (common practice for shared instruments; no published source).
+import { afterAll, describe, expect, it } from 'vitest';
+import { eq } from 'drizzle-orm';
+import { DateTime } from 'luxon';
+import { bookings, notifications } from '../../src/lib/server/db/schema';
+import { closeTestDb, makeBox, makeGroup, makeUser, testDb } from '../support/db';
+import { errorOf, signedIn } from '../support/http';
+
+afterAll(closeTestDb);
+
+const z = (iso: string) => new Date(iso);
+
+type Row = Partial<typeof bookings.$inferInsert> & { startAt: Date; endAt: Date };
+async function book(boxId: number, userId: number, groupId: number, row: Row) {
+	const [r] = await testDb()
+		.insert(bookings)
+		.values({
+			boxId,
+			userId,
+			groupId,
+			blockedUntil: row.endAt,
+			purpose: 'Statement test',
+			status: 'confirmed',
+			...row
+		})
+		.$returningId();
+	return r.id;
+}
+
+/** Polls until `check` holds; a deadline, not a sleep, decides when to give up. */
+async function until(check: () => Promise<boolean>, seconds = 20) {
+	const deadline = Date.now() + seconds * 1000;
+	while (Date.now() < deadline) {
+		if (await check()) return;
+		await new Promise((r) => setTimeout(r, 100));
+	}
+	throw new Error('condition not reached in time');
+}
+
+describe('monthly statement', () => {
+	it('October 2025 in Europe/Berlin, worked out by hand', async () => {
+		// This test's figures assume the facility zone the test run uses.
+		expect(process.env.FACILITY_TZ ?? 'Europe/Berlin').toBe('Europe/Berlin');
+		const group = await makeGroup('billing');
+		const member = await makeUser('member', { group: group.id });
+		const boxId = await makeBox({ rateInternal: 12.5, rateExternal: 30, cancelWindowHours: 24 });
+		const ids = {
+			// 1. Used: 7 Oct 09:00–12:00 CEST (07:00–10:00 UTC), in 09:05, out 11:35.
+			//    3 h booked, 2.5 h used, 3 h billed × 12.50 = 37.50.
+			used: await book(boxId, member.id, group.id, {
+				startAt: z('2025-10-07T07:00:00Z'),
+				endAt: z('2025-10-07T10:00:00Z'),
+				status: 'completed',
+				checkInAt: z('2025-10-07T07:05:00Z'),
+				checkOutAt: z('2025-10-07T09:35:00Z')
+			}),
+			// 2. No-show: 14 Oct 14:00–16:00 CEST. 2 h billed = 25.00.
+			noShow: await book(boxId, member.id, group.id, {
+				startAt: z('2025-10-14T12:00:00Z'),
+				endAt: z('2025-10-14T14:00:00Z'),
+				status: 'no_show'
+			}),
+			// 3. Late cancellation: 21 Oct 10:00–11:30 CEST, cancelled 2 h before (inside 24 h).
+			//    1.5 h billed = 18.75.
+			late: await book(boxId, member.id, group.id, {
+				startAt: z('2025-10-21T08:00:00Z'),
+				endAt: z('2025-10-21T09:30:00Z'),
+				status: 'cancelled',
+				cancelCause: 'user',
+				cancelledAt: z('2025-10-21T06:00:00Z')
+			}),
+			// 4. Cancelled for an outage: 22 Oct, 2 h booked, never billed.
+			outage: await book(boxId, member.id, group.id, {
+				startAt: z('2025-10-22T08:00:00Z'),
+				endAt: z('2025-10-22T10:00:00Z'),
+				status: 'cancelled',
+				cancelCause: 'outage',
+				cancelledAt: z('2025-10-22T07:30:00Z')
+			}),
+			// 5. Cancelled a week ahead: 1 h booked, not billed.
+			early: await book(boxId, member.id, group.id, {
+				startAt: z('2025-10-28T08:00:00Z'),
+				endAt: z('2025-10-28T09:00:00Z'),
+				status: 'cancelled',
+				cancelCause: 'user',
+				cancelledAt: z('2025-10-20T08:00:00Z')
+			}),
+			// 6. Across midnight at the month's end: 31 Oct 22:00 CET to 1 Nov 02:00 CET
+			//    (21:00–01:00 UTC; summer time ended on 26 Oct). October bills 22:00–24:00 local:
+			//    2 h = 25.00; November the other 2 h.
+			midnight: await book(boxId, member.id, group.id, {
+				startAt: z('2025-10-31T21:00:00Z'),
+				endAt: z('2025-11-01T01:00:00Z'),
+				status: 'completed'
+			})
+		};
+		// Total by hand: booked 3 + 2 + 1.5 + 2 + 1 + 2 = 11.5 h; used 2.5 h;
+		// billed 3 + 2 + 1.5 + 2 = 8.5 h; amount 37.50 + 25.00 + 18.75 + 25.00 = 106.25.
+		const pi = await signedIn(group.pi);
+		const csv = await pi.get(`/api/groups/${group.id}/statements/2025-10.csv`);
+		expect(csv.status).toBe(200);
+		expect(csv.headers.get('content-type')).toContain('text/csv');
+		const lines = (await csv.text()).trimEnd().split('\r\n');
+		expect(lines[0]).toBe(
+			'booking_id,box,booked_by,start,end,status,reason,booked_hours,used_hours,billed_hours,rate,amount'
+		);
+		const byId = (id: number) => lines.find((l) => l.startsWith(`${id},`))!.split(',');
+		const amount = (id: number) => byId(id).at(-1);
+		expect(amount(ids.used)).toBe('37.50');
+		expect(byId(ids.used).slice(-5, -2)).toEqual(['3.00', '2.50', '3.00']);
+		expect(amount(ids.noShow)).toBe('25.00');
+		expect(amount(ids.late)).toBe('18.75');
+		expect(amount(ids.outage)).toBe('0.00');
+		expect(amount(ids.early)).toBe('0.00');
+		expect(amount(ids.midnight)).toBe('25.00');
+		expect(byId(ids.midnight)[3]).toBe('2025-10-31T22:00:00+01:00');
+		const total = lines.at(-1)!.split(',');
+		expect(total[0]).toBe('total');
+		expect(total.slice(-5)).toEqual(['11.50', '2.50', '8.50', '', '106.25']);
+		expect(lines).toHaveLength(1 + 6 + 1);
+
+		// November holds the other half of the midnight booking: 2 h = 25.00.
+		const november = (await (await pi.get(`/api/groups/${group.id}/statements/2025-11.csv`)).text())
+			.trimEnd()
+			.split('\r\n');
+		expect(november.at(-1)!.split(',').at(-1)).toBe('25.00');
+
+		// The printable page shows the same total and says why each line was billed.
+		const page = await (await pi.get(`/groups/${group.id}/statements/2025-10`)).text();
+		expect(page).toContain('106.25');
+		expect(page).toContain('inside the 24 h window');
+	});
+
+	it('refuses a month not over, a malformed month and another group’s PI; an empty month is a valid file', async () => {
+		const group = await makeGroup('refusals');
+		const other = await makeGroup('other');
+		const pi = await signedIn(group.pi);
+		const thisMonth = DateTime.now().setZone('Europe/Berlin').toFormat('yyyy-MM');
+		const open = await pi.get(`/api/groups/${group.id}/statements/${thisMonth}.csv`);
+		expect(open.status).toBe(422);
+		expect((await errorOf(open)).code).toBe('month_not_over');
+		const bad = await pi.get(`/api/groups/${group.id}/statements/2025-13.csv`);
+		expect(bad.status).toBe(400);
+		const theirs = await pi.get(`/api/groups/${other.id}/statements/2025-09.csv`);
+		expect(theirs.status).toBe(403);
+		expect((await pi.get(`/groups/${other.id}`)).status).toBe(403);
+		const member = await signedIn(await makeUser('member', { group: group.id }));
+		expect((await member.get(`/api/groups/${group.id}/statements/2025-09.csv`)).status).toBe(403);
+
+		const empty = await pi.get(`/api/groups/${group.id}/statements/2025-09.csv`);
+		expect(empty.status).toBe(200);
+		expect((await empty.text()).split('\r\n')).toEqual([
+			'booking_id,box,booked_by,start,end,status,reason,booked_hours,used_hours,billed_hours,rate,amount',
+			expect.stringMatching(/^total,.*,0\.00,0\.00,0\.00,,0\.00$/),
+			''
+		]);
+	});
+
+	it('a closed month keeps its figures when a booking is changed afterwards', async () => {
+		const group = await makeGroup('closing');
+		const member = await makeUser('member', { group: group.id });
+		const boxId = await makeBox({ rateInternal: 10 });
+		const id = await book(boxId, member.id, group.id, {
+			startAt: z('2024-03-12T09:00:00Z'),
+			endAt: z('2024-03-12T12:00:00Z'),
+			status: 'completed'
+		});
+		const manager = await signedIn(await makeUser('manager'));
+		const pi = await signedIn(group.pi);
+		expect((await pi.form('/manage/statements?/close', { month: '2024-03' })).status).toBe(403);
+		const closed = await manager.form('/manage/statements?/close', { month: '2024-03' });
+		expect(closed.status).toBe(200);
+		await testDb()
+			.update(bookings)
+			.set({ status: 'cancelled', cancelCause: 'manager' })
+			.where(eq(bookings.id, id));
+		const csv = await (await pi.get(`/api/groups/${group.id}/statements/2024-03.csv`)).text();
+		expect(csv.trimEnd().split('\r\n').at(-1)!.endsWith(',30.00')).toBe(true);
+		expect((await manager.form('/manage/statements?/close', { month: '2024-03' })).status).toBe(
+			409
+		);
+		const future = await manager.form('/manage/statements?/close', { month: '2099-01' });
+		expect(future.status).toBe(422);
+	});
+
+	it('a rate below zero is refused with a field message', async () => {
+		const manager = await signedIn(await makeUser('manager'));
+		const boxId = await makeBox();
+		const page = await manager.form(`/manage/boxes/${boxId}`, {
+			name: `Rate test ${boxId}`,
+			room: 'T1',
+			gas: 'Ar',
+			volumeL: 1000,
+			o2WarnPpm: 1,
+			o2AlarmPpm: 10,
+			h2oWarnPpm: 1,
+			h2oAlarmPpm: 10,
+			rateInternal: -5,
+			rateExternal: 10,
+			slotStepMin: 15,
+			minLengthMin: 30,
+			maxLengthMin: 240,
+			horizonDays: 28,
+			weeklyQuotaMin: 720,
+			purgeMin: 30
+		});
+		expect(page.status).toBe(400);
+		expect(await page.text()).toContain('A rate cannot be below zero.');
+	});
+});
+
+describe('no-shows', () => {
+	it('marks a booking nobody checked in to, frees the rest of the slot and tells the member', async () => {
+		const group = await makeGroup('noshow');
+		const member = await makeUser('member', { group: group.id });
+		const boxId = await makeBox({ noShowGraceMin: 15 });
+		const start = new Date(Math.floor(Date.now() / 60_000) * 60_000 - 20 * 60_000);
+		const id = await book(boxId, member.id, group.id, {
+			startAt: start,
+			endAt: new Date(start.getTime() + 3 * 3_600_000)
+		});
+		await until(async () => {
+			const [b] = await testDb().select().from(bookings).where(eq(bookings.id, id));
+			return b.status === 'no_show';
+		});
+		const [b] = await testDb().select().from(bookings).where(eq(bookings.id, id));
+		expect(b.blockedUntil.getTime()).toBeLessThanOrEqual(Date.now());
+		await until(async () => {
+			const told = await testDb()
+				.select()
+				.from(notifications)
+				.where(eq(notifications.userId, member.id));
+			return told.some((n) => n.title.startsWith('No-show'));
+		});
+		// The rest of the slot can be booked by someone else (same box, no certification needed).
+		const other = await signedIn(await makeUser('member'));
+		const next = DateTime.now().setZone('Europe/Berlin').startOf('hour').plus({ hours: 1 });
+		const taken = await other.post('/api/bookings', {
+			boxId,
+			start: next.toISO(),
+			end: next.plus({ minutes: 30 }).toISO(),
+			purpose: 'Using the freed time'
+		});
+		expect(taken.status).toBe(201);
+	});
+});
