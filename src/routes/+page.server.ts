@@ -5,6 +5,7 @@ import { listBoxes } from '$lib/server/services/boxes';
 import { certificationsOf } from '$lib/server/services/training';
 import { hasRole } from '$lib/domain/roles';
 import { dueTasks } from '$lib/server/services/maintenance';
+import { failedMessages, groupsUsage, trainingNeeds } from '$lib/server/services/dashboard';
 import type { PageServerLoad } from './$types';
 
 export const load: PageServerLoad = async (event) => {
@@ -15,12 +16,21 @@ export const load: PageServerLoad = async (event) => {
 		listBoxes(),
 		certificationsOf(user.id)
 	]);
-	const maintenance = hasRole(user.role, 'manager') ? await dueTasks() : [];
+	const isManager = hasRole(user.role, 'manager');
+	const [maintenance, failed, needs, led] = await Promise.all([
+		isManager ? dueTasks() : [],
+		isManager ? failedMessages() : 0,
+		hasRole(user.role, 'trainer') ? trainingNeeds(user.id) : null,
+		groupsUsage(user.id)
+	]);
 	return {
 		group: me.group,
 		next: mine.upcoming.slice(0, 5),
 		boxes,
 		maintenance,
+		failed,
+		needs,
+		led,
 		// Held modules that are expiring, and ones that lapsed: both need a trainer.
 		attention: certs
 			.filter((c) => c.state === 'expiring' || c.state === 'expired')
