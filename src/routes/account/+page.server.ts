@@ -9,6 +9,7 @@ import {
 } from '$lib/server/services/accounts';
 import { attempt } from '$lib/server/services/errors';
 import { listBoxes } from '$lib/server/services/boxes';
+import { listGroupNames, requestMembership } from '$lib/server/services/groups';
 import { feedTokenCreatedAt, feedUrls, newFeedToken } from '$lib/server/services/feeds';
 import { changePasswordSchema } from '$lib/validation/account';
 import { fieldErrors } from '$lib/validation/fields';
@@ -21,14 +22,24 @@ export const load: PageServerLoad = async (event) => {
 		emailPreferences(user.id),
 		feedTokenCreatedAt(user.id)
 	]);
+	const mine = new Set(me.groups.map((g: { id: number }) => g.id));
+	const joinable = (await listGroupNames()).filter((g) => !mine.has(g.id));
 	return {
 		profile: { name: me.name, email: me.email, role: me.role, groups: me.groups, leads: me.leads },
 		prefs,
-		feedSince
+		feedSince,
+		joinable
 	};
 };
 
 export const actions: Actions = {
+	join: async (event) => {
+		const user = requireUser(event);
+		const groupId = Number((await event.request.formData()).get('groupId'));
+		const result = await attempt(() => requestMembership(user, groupId));
+		if (!result.ok) return fail(result.error.status, { join: result.error.message });
+		return { joined: true };
+	},
 	feed: async (event) => {
 		const user = requireUser(event);
 		const token = await newFeedToken(user.id);
