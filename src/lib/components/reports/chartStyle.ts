@@ -1,0 +1,57 @@
+// How the report charts tell their series apart: a colour and a fill pattern each, so a
+// series still reads in greyscale print or without colour vision. The legend draws the
+// same patterns in SVG.
+export type Pattern = 'solid' | 'hatch' | 'dots' | 'cross' | 'vertical' | 'horizontal';
+
+export type SeriesStyle = { colour: string; pattern: Pattern };
+
+const patterns: Pattern[] = ['solid', 'hatch', 'dots', 'cross', 'vertical', 'horizontal'];
+
+// ink-800, argon-600, nitrogen-600, watch-600, ink-400 (tailwind.config.ts).
+const colours = ['#242d3a', '#7657bd', '#218274', '#a76a06', '#7d8b9e'];
+
+/** The n-th series' style: patterns cycle first, then colours, so neighbours differ in both. */
+export function seriesStyle(i: number, colour?: string): SeriesStyle {
+	return { colour: colour ?? colours[i % colours.length], pattern: patterns[i % patterns.length] };
+}
+
+/** The gas accent of a box: argon lavender-violet, nitrogen sea-teal. */
+export const gasColour = (gas: 'Ar' | 'N2') => (gas === 'Ar' ? '#7657bd' : '#218274');
+
+/** Strokes of one 8×8 tile of the pattern, as SVG path data (also drawn on the canvas). */
+export function tilePath(pattern: Pattern): string {
+	switch (pattern) {
+		case 'hatch':
+			return 'M0 8 L8 0 M-2 2 L2 -2 M6 10 L10 6';
+		case 'cross':
+			return 'M0 8 L8 0 M-2 2 L2 -2 M6 10 L10 6 M0 0 L8 8 M-2 6 L2 10 M6 -2 L10 2';
+		case 'vertical':
+			return 'M4 0 L4 8';
+		case 'horizontal':
+			return 'M0 4 L8 4';
+		default:
+			return '';
+	}
+}
+
+/** A canvas fill for uPlot: the colour itself, or a tinted tile with the pattern on it. */
+export function canvasFill(style: SeriesStyle): string | CanvasPattern {
+	if (style.pattern === 'solid') return style.colour;
+	const tile = document.createElement('canvas');
+	tile.width = tile.height = 8;
+	const g = tile.getContext('2d');
+	if (!g) return style.colour;
+	g.fillStyle = `${style.colour}33`;
+	g.fillRect(0, 0, 8, 8);
+	g.strokeStyle = style.colour;
+	g.fillStyle = style.colour;
+	g.lineWidth = 1.5;
+	if (style.pattern === 'dots') {
+		g.beginPath();
+		g.arc(4, 4, 1.7, 0, 2 * Math.PI);
+		g.fill();
+	} else {
+		g.stroke(new Path2D(tilePath(style.pattern)));
+	}
+	return g.createPattern(tile, 'repeat') ?? style.colour;
+}
