@@ -508,7 +508,8 @@ export async function bookingsOf(userId: number, now = new Date()) {
 			cancelCause: bookings.cancelCause,
 			volatileSolvents: bookings.volatileSolvents,
 			checkInAt: bookings.checkInAt,
-			checkOutAt: bookings.checkOutAt
+			checkOutAt: bookings.checkOutAt,
+			cancelWindowHours: boxes.cancelWindowHours
 		})
 		.from(bookings)
 		.innerJoin(boxes, eq(boxes.id, bookings.boxId))
