@@ -95,9 +95,11 @@ describe('manual readings', () => {
 		// Between warn and alarm the alarm stands; under warn it clears.
 		const page = await member.get(`/boxes/${boxId}`);
 		expect(await page.text()).toContain('atmosphere alarm');
-		await member.post(`/api/boxes/${boxId}/readings`, { o2Ppm: 5, h2oPpm: 0.5 });
+		const between = await member.post(`/api/boxes/${boxId}/readings`, { o2Ppm: 5, h2oPpm: 0.5 });
+		expect(between.status).toBe(201);
 		expect(await stateOf(boxId)).toBe('alarm');
-		await member.post(`/api/boxes/${boxId}/readings`, { o2Ppm: 0.5, h2oPpm: 0.5 });
+		const under = await member.post(`/api/boxes/${boxId}/readings`, { o2Ppm: 0.5, h2oPpm: 0.5 });
+		expect(under.status).toBe(201);
 		expect(await stateOf(boxId)).toBe('ok');
 		const again = await member.post('/api/bookings', { boxId, ...slot(2, 10), purpose: 'Test' });
 		expect(again.status).toBe(201);

@@ -408,60 +408,62 @@ export async function decideBooking(
 	now = new Date()
 ) {
 	if (!hasRole(actor.role, 'manager')) throw forbidden('Only a manager can approve bookings.');
-	return db.transaction(async (tx) => {
-		const [booking] = await tx.select().from(bookings).where(eq(bookings.id, id)).for('update');
-		if (!booking) throw notFound('The booking');
-		if (booking.status !== 'pending')
-			throw new ServiceError(409, 'This booking is no longer waiting for approval.');
-		if (decision === 'approve') {
-			await tx
-				.update(bookings)
-				.set({
-					status: 'confirmed',
-					decidedBy: actor.id,
-					decidedAt: now,
-					sequence: sql`${bookings.sequence} + 1`
-				})
-				.where(eq(bookings.id, id));
-			const [person] = await tx
-				.select({
-					id: users.id,
-					email: users.email,
-					name: users.name,
-					emailConfirmations: users.emailConfirmations
-				})
-				.from(users)
-				.where(eq(users.id, booking.userId));
-			const [box] = await tx
-				.select({ name: boxes.name, room: boxes.room })
-				.from(boxes)
-				.where(eq(boxes.id, booking.boxId));
-			if (person?.emailConfirmations && box) {
-				await queueConfirmation(tx, person, { ...booking, sequence: booking.sequence + 1 }, box);
+	return withRetry(() =>
+		db.transaction(async (tx) => {
+			const [booking] = await tx.select().from(bookings).where(eq(bookings.id, id)).for('update');
+			if (!booking) throw notFound('The booking');
+			if (booking.status !== 'pending')
+				throw new ServiceError(409, 'This booking is no longer waiting for approval.');
+			if (decision === 'approve') {
+				await tx
+					.update(bookings)
+					.set({
+						status: 'confirmed',
+						decidedBy: actor.id,
+						decidedAt: now,
+						sequence: sql`${bookings.sequence} + 1`
+					})
+					.where(eq(bookings.id, id));
+				const [person] = await tx
+					.select({
+						id: users.id,
+						email: users.email,
+						name: users.name,
+						emailConfirmations: users.emailConfirmations
+					})
+					.from(users)
+					.where(eq(users.id, booking.userId));
+				const [box] = await tx
+					.select({ name: boxes.name, room: boxes.room })
+					.from(boxes)
+					.where(eq(boxes.id, booking.boxId));
+				if (person?.emailConfirmations && box) {
+					await queueConfirmation(tx, person, { ...booking, sequence: booking.sequence + 1 }, box);
+				}
+			} else {
+				await tx
+					.update(bookings)
+					.set({
+						status: 'cancelled',
+						cancelCause: 'manager',
+						cancelReason: reason ?? 'Declined.',
+						cancelledAt: now,
+						cancelledBy: actor.id,
+						decidedBy: actor.id,
+						decidedAt: now,
+						sequence: sql`${bookings.sequence} + 1`
+					})
+					.where(eq(bookings.id, id));
 			}
-		} else {
-			await tx
-				.update(bookings)
-				.set({
-					status: 'cancelled',
-					cancelCause: 'manager',
-					cancelReason: reason ?? 'Declined.',
-					cancelledAt: now,
-					cancelledBy: actor.id,
-					decidedBy: actor.id,
-					decidedAt: now,
-					sequence: sql`${bookings.sequence} + 1`
-				})
-				.where(eq(bookings.id, id));
-		}
-		await audit(tx, {
-			actorId: actor.id,
-			action: decision === 'approve' ? 'booking.approved' : 'booking.declined',
-			entity: 'booking',
-			entityId: id,
-			details: reason ? { reason } : undefined
-		});
-	});
+			await audit(tx, {
+				actorId: actor.id,
+				action: decision === 'approve' ? 'booking.approved' : 'booking.declined',
+				entity: 'booking',
+				entityId: id,
+				details: reason ? { reason } : undefined
+			});
+		})
+	);
 }
 
 export async function pendingBookings() {
