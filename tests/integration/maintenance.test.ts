@@ -5,22 +5,13 @@ import { bookings, maintenanceLog, maintenanceTasks, outbox } from '../../src/li
 import { closeTestDb, makeBox, makeUser, testDb } from '../support/db';
 import { signedIn } from '../support/http';
 import { facilityTz, slot } from '../support/time';
+import { until } from '../support/until';
 
 afterAll(closeTestDb);
 
 const daysAgo = (n: number) => DateTime.now().setZone(facilityTz).minus({ days: n }).toISODate()!;
 const tasksOf = (boxId: number) =>
 	testDb().select().from(maintenanceTasks).where(eq(maintenanceTasks.boxId, boxId));
-
-/** Polls until `check` holds; a deadline, not a sleep, decides when to give up. */
-async function until(check: () => Promise<boolean>, seconds = 20) {
-	const deadline = Date.now() + seconds * 1000;
-	while (Date.now() < deadline) {
-		if (await check()) return;
-		await new Promise((r) => setTimeout(r, 100));
-	}
-	throw new Error('condition not reached in time');
-}
 
 describe('maintenance schedule', () => {
 	it('an overdue task shows on the dashboard, mails the managers once, and moves on when done', async () => {

@@ -8,6 +8,7 @@ import { closeTestDb, makeBox, makeUser, testDb } from '../support/db';
 import { errorOf, signedIn } from '../support/http';
 import { sunkMail } from '../support/mail';
 import { slot } from '../support/time';
+import { until } from '../support/until';
 
 afterAll(closeTestDb);
 
@@ -41,16 +42,6 @@ async function boxWithBookings(count: number, daysAhead: number) {
 		ids,
 		window: { start: day.start, end: new Date(dayStart + count * 3_600_000).toISOString() }
 	};
-}
-
-/** Polls until `check` holds; a deadline, not a sleep, decides when to give up. */
-async function until(check: () => Promise<boolean>, seconds = 20) {
-	const deadline = Date.now() + seconds * 1000;
-	while (Date.now() < deadline) {
-		if (await check()) return;
-		await new Promise((r) => setTimeout(r, 100));
-	}
-	throw new Error('condition not reached in time');
 }
 
 const sinkDir = () => {

@@ -7,6 +7,7 @@ import { DateTime } from 'luxon';
 import { bookings, notifications } from '../../src/lib/server/db/schema';
 import { closeTestDb, makeBox, makeGroup, makeUser, testDb } from '../support/db';
 import { errorOf, signedIn } from '../support/http';
+import { until } from '../support/until';
 
 afterAll(closeTestDb);
 
@@ -27,16 +28,6 @@ async function book(boxId: number, userId: number, groupId: number, row: Row) {
 		})
 		.$returningId();
 	return r.id;
-}
-
-/** Polls until `check` holds; a deadline, not a sleep, decides when to give up. */
-async function until(check: () => Promise<boolean>, seconds = 20) {
-	const deadline = Date.now() + seconds * 1000;
-	while (Date.now() < deadline) {
-		if (await check()) return;
-		await new Promise((r) => setTimeout(r, 100));
-	}
-	throw new Error('condition not reached in time');
 }
 
 describe('monthly statement', () => {

@@ -198,6 +198,10 @@ export async function getGloveChange(id: number) {
 		.from(boxes)
 		.where(eq(boxes.id, port.boxId));
 	const [outage] = await db.select().from(outages).where(eq(outages.id, change.outageId));
+	// What still holds the box out of service, for boxes that need proof before it returns.
+	const proofMissing = change.completedAt
+		? null
+		: await db.transaction((tx) => missingProof(tx, box.id, change.startedAt));
 	// The outage's own audit entries name the bookings it cancelled (creation and any
 	// later extension), so the list is exact, not guessed from reasons or times.
 	const entries = await db
@@ -233,6 +237,7 @@ export async function getGloveChange(id: number) {
 		change,
 		port,
 		box,
+		proofMissing,
 		outage,
 		cancelled,
 		oldGlove,

@@ -11,8 +11,8 @@ import { idParam } from '$lib/server/params';
 import { boxOutages, getBox } from '$lib/server/services/boxes';
 import { attempt } from '$lib/server/services/errors';
 import { latestReadings, recordReading } from '$lib/server/services/atmosphere';
-import { checkReading } from '$lib/domain/atmosphere';
 import { documentsFor, mayManageDocuments } from '$lib/server/services/documents';
+import { readingFromForm } from '$lib/validation/readings';
 import type { Actions, PageServerLoad } from './$types';
 
 export const load: PageServerLoad = async (event) => {
@@ -76,14 +76,9 @@ export const actions: Actions = {
 		const actor = requireRole(event, 'member');
 		const boxId = idParam(event.params.id, 'The box');
 		const values = Object.fromEntries(await event.request.formData()) as Values;
-		const number = (v: string | undefined) =>
-			v?.trim() ? Number(v.replace(',', '.')) : Number.NaN;
-		const reading = { o2Ppm: number(values.o2Ppm), h2oPpm: number(values.h2oPpm) };
-		const errors: Record<string, string> = checkReading(reading);
-		const note = (values.note ?? '').trim();
-		if (note.length > 500) errors.note = 'Use at most 500 characters.';
+		const { reading, errors } = readingFromForm(values);
 		if (Object.keys(errors).length) return fail(400, { form: 'reading', values, errors });
-		const result = await attempt(() => recordReading(actor, boxId, { ...reading, note }));
+		const result = await attempt(() => recordReading(actor, boxId, reading));
 		if (!result.ok)
 			return fail(result.error.status, {
 				form: 'reading',

@@ -1,6 +1,5 @@
 import { error, fail, redirect } from '@sveltejs/kit';
 import { eq } from 'drizzle-orm';
-import { checkReading } from '$lib/domain/atmosphere';
 import { checkInRefusal, checkOutRefusal } from '$lib/domain/checkins';
 import { hasRole } from '$lib/domain/roles';
 import { db } from '$lib/server/db';
@@ -10,6 +9,7 @@ import { idParam } from '$lib/server/params';
 import { latestReadings } from '$lib/server/services/atmosphere';
 import { check } from '$lib/server/services/checkins';
 import { attempt } from '$lib/server/services/errors';
+import { readingFromForm } from '$lib/validation/readings';
 import type { Actions, PageServerLoad } from './$types';
 
 export const load: PageServerLoad = async (event) => {
@@ -46,13 +46,9 @@ async function act(event: Parameters<Actions[string]>[0], which: 'in' | 'out') {
 	const user = requireRole(event, 'member');
 	const id = idParam(event.params.id ?? '', 'The booking');
 	const values = Object.fromEntries(await event.request.formData()) as Record<string, string>;
-	const number = (v: string | undefined) => (v?.trim() ? Number(v.replace(',', '.')) : Number.NaN);
-	const reading = { o2Ppm: number(values.o2Ppm), h2oPpm: number(values.h2oPpm) };
-	const errors: Record<string, string> = checkReading(reading);
-	const note = (values.note ?? '').trim();
-	if (note.length > 500) errors.note = 'Use at most 500 characters.';
+	const { reading, errors } = readingFromForm(values);
 	if (Object.keys(errors).length) return fail(400, { values, errors });
-	const result = await attempt(() => check(user, id, which, { ...reading, note }));
+	const result = await attempt(() => check(user, id, which, reading));
 	if (!result.ok)
 		return fail(result.error.status, { values, errors: {}, message: result.error.message });
 	redirect(303, `/bookings?checked=${which}`);
