@@ -356,6 +356,10 @@ export async function seedBoxesAndBookings(
 	});
 	await db.insert(atmosphereReadings).values(readings);
 
+	// Demo bookings that are not waiting for approval were confirmed when made.
+	await db.execute(
+		sql`UPDATE bookings SET confirmed_at = created_at WHERE confirmed_at IS NULL AND status <> 'pending'`
+	);
 	// Each booking is billed to its booker's group.
 	await db.execute(
 		sql`UPDATE bookings b JOIN (SELECT user_id, MIN(group_id) AS group_id FROM group_memberships WHERE status = 'active' GROUP BY user_id) m ON m.user_id = b.user_id SET b.group_id = m.group_id WHERE b.group_id IS NULL`

@@ -3,7 +3,12 @@
 import { randomBytes } from 'node:crypto';
 import { afterAll, describe, expect, it } from 'vitest';
 import { count, eq } from 'drizzle-orm';
-import { auditLog, documents, gloveInspections } from '../../src/lib/server/db/schema';
+import {
+	auditLog,
+	documents,
+	gloveInspections,
+	moduleTrainers
+} from '../../src/lib/server/db/schema';
 import { closeTestDb, fitGloves, makeBox, makeModule, makeUser, testDb } from '../support/db';
 import { Client, errorOf, signedIn } from '../support/http';
 
@@ -116,9 +121,14 @@ describe('SOP documents', () => {
 
 	it('a trainer attaches a PDF to a training module; a member finds it on the training page', async () => {
 		const moduleId = await makeModule('sop');
-		const trainer = await signedIn(await makeUser('trainer'));
+		const teacher = await makeUser('trainer');
+		await testDb().insert(moduleTrainers).values({ moduleId, userId: teacher.id });
+		const trainer = await signedIn(teacher);
 		const pdf = minimalPdf();
 		const title = unique('Antechamber cycles procedure');
+		// A trainer who does not teach the module may not change its documents.
+		const stranger = await signedIn(await makeUser('trainer'));
+		expect((await upload(stranger, { title, moduleId }, asPdf(pdf))).status).toBe(403);
 		const r = await upload(trainer, { title, moduleId }, asPdf(pdf, 'antechamber.pdf'));
 		expect(r.status).toBe(201);
 		const { document } = await r.json();

@@ -92,6 +92,16 @@ describe('leak tests', () => {
 			hand: 'left'
 		});
 		for (let i = 0; i < 3; i++) await manager.form(`${changeUrl}?/step`, { key: 'flush_cycle' });
+		// A reading in spec while the port is still covered proves nothing about the new glove.
+		await manager.post(`/api/boxes/${boxId}/readings`, {
+			at: new Date(Date.now() - 5_000).toISOString(),
+			o2Ppm: 0.3,
+			h2oPpm: 0.3
+		});
+		const covered = await manager.form(`${changeUrl}?/complete`, {});
+		expect(covered.status).toBe(422);
+		expect(await covered.text()).toContain('log the cover');
+		await manager.form(`${changeUrl}?/step`, { key: 'cover_removed' });
 		const held = await manager.form(`${changeUrl}?/complete`, {});
 		expect(held.status).toBe(422);
 		expect(await held.text()).toContain('passing leak test or a reading under both warn levels');

@@ -96,7 +96,8 @@ describe('reports', () => {
 			...g,
 			status: 'cancelled',
 			cancelCause: 'user',
-			cancelledAt: on(2, 7)
+			cancelledAt: on(2, 7),
+			confirmedAt: on(-7, 9)
 		});
 		await book(boxId, member.id, on(3, 9), on(3, 11), {
 			...g,

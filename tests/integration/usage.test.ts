@@ -24,6 +24,7 @@ async function book(boxId: number, userId: number, groupId: number, row: Row) {
 			blockedUntil: row.endAt,
 			purpose: 'Statement test',
 			status: 'confirmed',
+			confirmedAt: new Date(row.startAt.getTime() - 86_400_000),
 			...row
 		})
 		.$returningId();
@@ -47,10 +48,12 @@ describe('monthly statement', () => {
 				checkInAt: z('2025-10-07T07:05:00Z'),
 				checkOutAt: z('2025-10-07T09:35:00Z')
 			}),
-			// 2. No-show: 14 Oct 14:00–16:00 CEST. 2 h billed = 25.00.
+			// 2. No-show: 14 Oct 14:00–16:00 CEST, freed at 14:15 when nobody had checked in.
+			//    Billed for the 0.25 h it held the box: 0.25 × 12.50 = 3.125 → 3.13 (half up).
 			noShow: await book(boxId, member.id, group.id, {
 				startAt: z('2025-10-14T12:00:00Z'),
 				endAt: z('2025-10-14T14:00:00Z'),
+				blockedUntil: z('2025-10-14T12:15:00Z'),
 				status: 'no_show'
 			}),
 			// 3. Late cancellation: 21 Oct 10:00–11:30 CEST, cancelled 2 h before (inside 24 h).
@@ -60,7 +63,17 @@ describe('monthly statement', () => {
 				endAt: z('2025-10-21T09:30:00Z'),
 				status: 'cancelled',
 				cancelCause: 'user',
-				cancelledAt: z('2025-10-21T06:00:00Z')
+				cancelledAt: z('2025-10-21T06:00:00Z'),
+				confirmedAt: z('2025-10-01T08:00:00Z')
+			}),
+			// 3b. Withdrawn as late, but it was never approved: not billed (1 h booked).
+			withdrawn: await book(boxId, member.id, group.id, {
+				startAt: z('2025-10-21T12:00:00Z'),
+				endAt: z('2025-10-21T13:00:00Z'),
+				status: 'cancelled',
+				cancelCause: 'user',
+				cancelledAt: z('2025-10-21T11:00:00Z'),
+				confirmedAt: null
 			}),
 			// 4. Cancelled for an outage: 22 Oct, 2 h booked, never billed.
 			outage: await book(boxId, member.id, group.id, {
@@ -87,8 +100,8 @@ describe('monthly statement', () => {
 				status: 'completed'
 			})
 		};
-		// Total by hand: booked 3 + 2 + 1.5 + 2 + 1 + 2 = 11.5 h; used 2.5 h;
-		// billed 3 + 2 + 1.5 + 2 = 8.5 h; amount 37.50 + 25.00 + 18.75 + 25.00 = 106.25.
+		// Total by hand: booked 3 + 2 + 1.5 + 1 + 2 + 1 + 2 = 12.5 h; used 2.5 h;
+		// billed 3 + 0.25 + 1.5 + 2 = 6.75 h; amount 37.50 + 3.13 + 18.75 + 25.00 = 84.38.
 		const pi = await signedIn(group.pi);
 		const csv = await pi.get(`/api/groups/${group.id}/statements/2025-10.csv`);
 		expect(csv.status).toBe(200);
@@ -101,7 +114,8 @@ describe('monthly statement', () => {
 		const amount = (id: number) => byId(id).at(-1);
 		expect(amount(ids.used)).toBe('37.50');
 		expect(byId(ids.used).slice(-5, -2)).toEqual(['3.00', '2.50', '3.00']);
-		expect(amount(ids.noShow)).toBe('25.00');
+		expect(amount(ids.noShow)).toBe('3.13');
+		expect(byId(ids.noShow).slice(-5, -2)).toEqual(['2.00', '0.00', '0.25']);
 		expect(amount(ids.late)).toBe('18.75');
 		expect(amount(ids.outage)).toBe('0.00');
 		expect(amount(ids.early)).toBe('0.00');
@@ -109,8 +123,9 @@ describe('monthly statement', () => {
 		expect(byId(ids.midnight)[3]).toBe('2025-10-31T22:00:00+01:00');
 		const total = lines.at(-1)!.split(',');
 		expect(total[0]).toBe('total');
-		expect(total.slice(-5)).toEqual(['11.50', '2.50', '8.50', '', '106.25']);
-		expect(lines).toHaveLength(1 + 6 + 1);
+		expect(amount(ids.withdrawn)).toBe('0.00');
+		expect(total.slice(-5)).toEqual(['12.50', '2.50', '6.75', '', '84.38']);
+		expect(lines).toHaveLength(1 + 7 + 1);
 
 		// November holds the other half of the midnight booking: 2 h = 25.00.
 		const november = (await (await pi.get(`/api/groups/${group.id}/statements/2025-11.csv`)).text())
@@ -120,7 +135,7 @@ describe('monthly statement', () => {
 
 		// The printable page shows the same total and says why each line was billed.
 		const page = await (await pi.get(`/groups/${group.id}/statements/2025-10`)).text();
-		expect(page).toContain('106.25');
+		expect(page).toContain('84.38');
 		expect(page).toContain('inside the 24 h window');
 	});
 

@@ -78,7 +78,10 @@ describe('timeParser', () => {
 			'2026-11-30 10:00',
 			'2026-11-30T10:00:05',
 			'2026-10-25 01:59',
-			'2026-10-25 02:30', // the hour that happens twice: the first one, as luxon picks
+			'2026-10-25 02:30', // the hour that happens twice: refused without an offset
+			'2026-10-25T02:30:00+02:00',
+			'2026-10-25T02:30:00+01:00',
+			'2026-02-30T10:00:00Z', // no such day, with an offset
 			'2026-10-25 03:00',
 			'2026-03-29 01:59',
 			'2026-03-29 02:30', // skipped when the clocks went forward
@@ -87,5 +90,16 @@ describe('timeParser', () => {
 			'2026-11-30 24:00'
 		];
 		for (const s of samples) expect([s, fast(s)]).toEqual([s, parseTime(s, tz)]);
+	});
+});
+
+describe('clock changes and impossible dates', () => {
+	it('refuses a local time the clocks pass twice, and a day that does not exist', () => {
+		const fast = timeParser(tz);
+		expect(fast('2026-10-25 02:30')).toMatch(/happens twice/);
+		expect(fast('2026-10-25T02:30:00+01:00')).toEqual(new Date('2026-10-25T01:30:00Z'));
+		expect(fast('2026-02-30T10:00:00Z')).toMatch(/is not a time/);
+		expect(fast('2026-10-25 01:59')).toEqual(new Date('2026-10-24T23:59:00Z'));
+		expect(fast('2026-10-25 03:00')).toEqual(new Date('2026-10-25T02:00:00Z'));
 	});
 });

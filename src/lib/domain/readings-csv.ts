@@ -34,6 +34,11 @@ const columnOf = (header: string) => {
 	return null;
 };
 
+const realDate = (y: number, mo: number, d: number) => {
+	const back = new Date(Date.UTC(y, mo - 1, d));
+	return back.getUTCFullYear() === y && back.getUTCMonth() === mo - 1 && back.getUTCDate() === d;
+};
+
 /** Bytes that no CSV text holds: NUL, or a UTF-8 decoder's replacement character. */
 export function looksBinary(text: string): boolean {
 	return text.includes('\u0000') || text.includes('\uFFFD');
@@ -57,8 +62,14 @@ export function timeParser(tz: string): (value: string) => Date | string {
 		if (offset === undefined) {
 			const start = DateTime.fromObject({ year: y, month: mo, day: d, hour: h }, { zone: tz });
 			const end = start.set({ minute: 59 });
+			// An hour the clocks pass twice (when they go back) is left to the slow path too.
+			const repeats = start.plus({ hours: 1 }).hour === h || start.minus({ hours: 1 }).hour === h;
 			const whole =
-				start.isValid && start.hour === h && end.hour === h && start.offset === end.offset;
+				start.isValid &&
+				start.hour === h &&
+				end.hour === h &&
+				start.offset === end.offset &&
+				!repeats;
 			offset = whole ? start.offset : null;
 			hours.set(key, offset);
 		}
@@ -72,7 +83,9 @@ export function timeParser(tz: string): (value: string) => Date | string {
 				zoned[3].toUpperCase() === 'Z'
 					? 'Z'
 					: zoned[3].replace(/^([+-]\d{2}):?(\d{2})?$/, (_, h, m) => `${h}:${m ?? '00'}`);
-			const ms = Date.parse(`${zoned[1]}T${zoned[2]}${zone}`);
+			const [y, mo, d] = zoned[1].split('-').map(Number);
+			// Date.parse rolls 30 February over into March; such a date is no date.
+			const ms = realDate(y, mo, d) ? Date.parse(`${zoned[1]}T${zoned[2]}${zone}`) : Number.NaN;
 			if (!Number.isNaN(ms)) return new Date(ms);
 		}
 		const local = LOCAL.exec(text);
@@ -81,10 +94,7 @@ export function timeParser(tz: string): (value: string) => Date | string {
 			const [se, ms] = [Number(local[6] ?? 0), Number((local[7] ?? '0').padEnd(3, '0'))];
 			const offset = offsetOfHour(y, mo, d, h);
 			const utc = Date.UTC(y, mo - 1, d, h, mi, se, ms);
-			const back = new Date(utc);
-			const real =
-				back.getUTCFullYear() === y && back.getUTCMonth() === mo - 1 && back.getUTCDate() === d;
-			if (offset !== null && real && h < 24 && mi < 60 && se < 60)
+			if (offset !== null && realDate(y, mo, d) && h < 24 && mi < 60 && se < 60)
 				return new Date(utc - offset * 60_000);
 		}
 		return parseTime(text, tz);
@@ -113,6 +123,10 @@ export function parseTime(value: string, tz: string): Date | string {
 		const wall = text.replace('T', ' ').slice(0, 16);
 		if (back.toFormat('yyyy-MM-dd HH:mm') !== wall)
 			return `${text} does not exist on the facility's clock (the clocks went forward)`;
+		// When the clocks go back an hour is passed twice: without an offset it names two instants.
+		const stamp = (t: DateTime) => t.toFormat('yyyy-MM-dd HH:mm');
+		if (stamp(back.plus({ hours: 1 })) === wall || stamp(back.minus({ hours: 1 })) === wall)
+			return `${text} happens twice on the facility's clock (the clocks went back); give it with its offset`;
 	}
 	return dt.toJSDate();
 }

@@ -71,6 +71,8 @@ export type ReportBooking = Interval & {
 	status: BookingStatus;
 	cancelCause: CancelCause | null;
 	cancelledAt: Date | null;
+	/** Null when it was never confirmed (withdrawn while waiting for approval). */
+	confirmedAt?: Date | null;
 };
 
 export type ReportBox = { id: number; cancelWindowHours: number };
@@ -171,10 +173,12 @@ export const isBooked = (status: BookingStatus) => BOOKED_STATUSES.includes(stat
  * usage.ts bills as booked. Without a recorded time nothing shows it was late.
  */
 export function isLateCancellation(
-	b: Pick<ReportBooking, 'startAt' | 'status' | 'cancelCause' | 'cancelledAt'>,
+	b: Pick<ReportBooking, 'startAt' | 'status' | 'cancelCause' | 'cancelledAt' | 'confirmedAt'>,
 	cancelWindowHours: number
 ): boolean {
 	if (b.status !== 'cancelled' || b.cancelCause !== 'user' || !b.cancelledAt) return false;
+	// Withdrawn while waiting for approval: never billed, as in usage.ts.
+	if (b.confirmedAt === null) return false;
 	const at = b.cancelledAt.getTime();
 	const start = b.startAt.getTime();
 	return at >= start || at > start - cancelWindowHours * HOUR_MS;

@@ -561,3 +561,29 @@ describe('rates', () => {
 		expect(checkRate(100_000.01)).toMatch(/100,000/);
 	});
 });
+
+describe('no-shows freed early and bookings never approved (facility policy)', () => {
+	it('bills a no-show up to when its slot was freed, not to its end', () => {
+		// 09:00–12:00 CEST, freed at 09:15: 0.25 h × 12.50 = 3.125 → 3.13.
+		const s = statement(
+			[booking({ status: 'no_show', heldUntil: at('2026-10-06T07:15:00Z') })],
+			'2026-10',
+			tz
+		);
+		expect(s.lines[0]).toMatchObject({ bookedHours: 3, billedHours: 0.25, amount: 3.13 });
+		expect(s.lines[0].reason).toMatch(/until the rest of the slot was freed/);
+	});
+	it('does not bill a late withdrawal of a booking that was never approved', () => {
+		const withdrawn = booking({
+			status: 'cancelled',
+			cancelCause: 'user',
+			cancelledAt: at('2026-10-06T06:00:00Z'),
+			confirmedAt: null
+		});
+		expect(chargeOf(withdrawn)).toMatchObject({ kind: 'cancelled', billable: false });
+		expect(chargeOf({ ...withdrawn, confirmedAt: at('2026-10-01T00:00:00Z') })).toMatchObject({
+			kind: 'late_cancellation',
+			billable: true
+		});
+	});
+});

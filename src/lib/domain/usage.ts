@@ -8,9 +8,12 @@
 // - Booked time is billed, not used time: a box held for a slot is unavailable to everyone
 //   else for it, whether or not the holder works the whole slot.
 // - Billed in full: confirmed or completed bookings (checked in or not; bookings from before
-//   check-in existed have none), no-shows, and cancellations by the user made inside the
-//   box's late-cancellation window (later than start − window) or after the start.
-// - Not billed: cancellations by the user before the window, cancellations by a manager,
+//   check-in existed have none), and cancellations by the user of a confirmed booking made
+//   inside the box's late-cancellation window (later than start − window) or after the start.
+// - No-shows: billed from the start until the slot was freed (the grace time), since the rest
+//   of it went back to others; without that moment recorded, in full.
+// - Not billed: cancellations by the user before the window or of a booking never approved,
+//   cancellations by a manager,
 //   cancellations for an outage (never), and bookings still waiting for approval. A
 //   cancellation whose cause or time was not recorded is not billed either: nothing shows
 //   it was late.
@@ -46,6 +49,10 @@ export type UsageBooking = {
 	rate: number;
 	/** The box's late-cancellation window, in hours. */
 	cancelWindowHours: number;
+	/** When it was confirmed; null if it never was (withdrawn while waiting for approval). */
+	confirmedAt?: Date | null;
+	/** For a no-show: when its slot was freed. It is billed up to then, not to its end. */
+	heldUntil?: Date | null;
 };
 
 export type ChargeKind =
@@ -186,6 +193,12 @@ function duration(minutes: number): string {
 }
 
 function userCancellation(b: UsageBooking): Charge {
+	if (b.confirmedAt === null)
+		return {
+			kind: 'cancelled',
+			billable: false,
+			reason: 'Withdrawn while waiting for approval: not billed.'
+		};
 	if (!b.cancelledAt)
 		return {
 			kind: 'cancelled',
@@ -240,7 +253,9 @@ export function chargeOf(b: UsageBooking): Charge {
 			return {
 				kind: 'no_show',
 				billable: true,
-				reason: 'No-show: the booked time is billed in full.'
+				reason: b.heldUntil
+					? 'No-show: billed for the time the box was held, until the rest of the slot was freed.'
+					: 'No-show: the booked time is billed in full.'
 			};
 		case 'pending':
 			return { kind: 'pending', billable: false, reason: 'Waiting for approval: not billed.' };
@@ -305,7 +320,12 @@ export function statement(bookings: UsageBooking[], month: string, tz: string): 
 		const charge = chargeOf(b);
 		const booked = hoursInMonth(b.startAt, b.endAt, bounds);
 		const used = usedHoursInMonth(b, bounds);
-		const billed = charge.billable ? booked : 0;
+		// A no-show held the box only until its slot was freed; the rest may have been resold.
+		const held =
+			b.status === 'no_show' && b.heldUntil && b.heldUntil < b.endAt
+				? hoursInMonth(b.startAt, b.heldUntil, bounds)
+				: booked;
+		const billed = charge.billable ? held : 0;
 		const amount = roundCents(billed * b.rate);
 		const box = boxes.get(b.boxId) ?? {
 			boxName: b.boxName,

@@ -17,3 +17,12 @@ export function refusedForm<V>(values: V, error: ServiceError) {
 	const details = error.details as { fields?: Record<string, string> } | undefined;
 	return fail(error.status, { values, errors: details?.fields ?? {}, message: error.message });
 }
+
+/**
+ * A record id posted in a form. Anything but a positive whole number becomes 0, which no
+ * record has, so the service answers "not found" instead of sending NaN to the database.
+ */
+export function formId(value: FormDataEntryValue | null | undefined): number {
+	const n = typeof value === 'string' && /^\d{1,10}$/.test(value.trim()) ? Number(value) : 0;
+	return Number.isSafeInteger(n) ? n : 0;
+}

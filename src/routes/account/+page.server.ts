@@ -13,6 +13,7 @@ import { listGroupNames, requestMembership } from '$lib/server/services/groups';
 import { feedTokenCreatedAt, feedUrls, newFeedToken } from '$lib/server/services/feeds';
 import { changePasswordSchema } from '$lib/validation/account';
 import { fieldErrors } from '$lib/validation/fields';
+import { formId } from '$lib/server/forms';
 import type { Actions, PageServerLoad } from './$types';
 
 export const load: PageServerLoad = async (event) => {
@@ -35,7 +36,7 @@ export const load: PageServerLoad = async (event) => {
 export const actions: Actions = {
 	join: async (event) => {
 		const user = requireUser(event);
-		const groupId = Number((await event.request.formData()).get('groupId'));
+		const groupId = formId((await event.request.formData()).get('groupId'));
 		const result = await attempt(() => requestMembership(user, groupId));
 		if (!result.ok) return fail(result.error.status, { join: result.error.message });
 		return { joined: true };

@@ -10,6 +10,7 @@ import {
 } from '$lib/server/services/bookings';
 import { attempt } from '$lib/server/services/errors';
 import { cancelSchema } from '$lib/validation/bookings';
+import { formId } from '$lib/server/forms';
 import type { Actions, PageServerLoad } from './$types';
 
 export const load: PageServerLoad = async (event) => {
@@ -37,12 +38,12 @@ export const actions: Actions = {
 	rebook: async (event) => {
 		const user = requireUser(event);
 		const form = await event.request.formData();
-		const original = await getBooking(Number(form.get('fromBookingId')));
+		const original = await getBooking(formId(form.get('fromBookingId')));
 		if (!original || original.userId !== user.id)
 			return fail(404, { message: 'That booking was not found.' });
 		const start = new Date(String(form.get('start')));
 		const end = new Date(String(form.get('end')));
-		const boxId = Number(form.get('boxId'));
+		const boxId = formId(form.get('boxId'));
 		if (
 			Number.isNaN(start.getTime()) ||
 			Number.isNaN(end.getTime()) ||
@@ -73,7 +74,7 @@ export const actions: Actions = {
 	cancel: async (event) => {
 		const user = requireUser(event);
 		const form = await event.request.formData();
-		const id = Number(form.get('bookingId'));
+		const id = formId(form.get('bookingId'));
 		const parsed = cancelSchema.safeParse({ reason: form.get('reason') ?? undefined });
 		if (!Number.isSafeInteger(id) || id <= 0 || !parsed.success) {
 			return fail(400, { message: 'Choose a booking to cancel.' });

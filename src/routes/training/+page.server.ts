@@ -1,6 +1,6 @@
 import { requireUser } from '$lib/server/guard';
 import { certificationsOf, listModules } from '$lib/server/services/training';
-import { documentsForModules, mayManageDocuments } from '$lib/server/services/documents';
+import { documentsForModules, modulesManagedBy } from '$lib/server/services/documents';
 import type { PageServerLoad } from './$types';
 
 export const load: PageServerLoad = async (event) => {
@@ -15,6 +15,6 @@ export const load: PageServerLoad = async (event) => {
 			trainers: m.trainers.map((t) => t.name)
 		})),
 		documents: await documentsForModules(modules.map((m) => m.id)),
-		canManageDocuments: mayManageDocuments(user, 'module')
+		managedModules: await modulesManagedBy(user).then((m) => (m === 'all' ? 'all' : [...m]))
 	};
 };

@@ -40,6 +40,8 @@ export const bookings = mysqlTable(
 		cancelledBy: int(),
 		decidedBy: int(),
 		decidedAt: datetime({ mode: 'date' }),
+		/** When it was confirmed (at once, or on approval); null while it waited for approval. */
+		confirmedAt: datetime({ mode: 'date' }),
 		checkInAt: datetime({ mode: 'date' }),
 		checkOutAt: datetime({ mode: 'date' }),
 		/** iCalendar SEQUENCE: raised on every change the holder's calendar should see. */

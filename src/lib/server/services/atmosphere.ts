@@ -115,6 +115,11 @@ function checkInstant(at: Date, now: Date) {
 		});
 }
 
+/** After a box's thresholds change: its state as the newest reading now calls for. */
+export async function resettle(tx: Transaction, boxId: number, actorId: number) {
+	return settleState(tx, await lockBox(tx, boxId), actorId);
+}
+
 /** Inserts one reading inside `tx`, whose box lock the caller holds. */
 export async function insertReading(
 	tx: Transaction,

@@ -130,10 +130,11 @@ async function readGates(userId: number, boxId: number) {
 				email: users.email,
 				name: users.name,
 				emailConfirmations: users.emailConfirmations,
-				// The group billed for the booking: the booker's first active group.
+				// The group billed for the booking: the booker's oldest active membership (the
+				// group they joined first), so joining another group later moves nothing.
 				groupId: sql<
 					number | null
-				>`(SELECT MIN(${groupMemberships.groupId}) FROM ${groupMemberships} WHERE ${groupMemberships.userId} = ${users.id} AND ${groupMemberships.status} = 'active')`
+				>`(SELECT ${groupMemberships.groupId} FROM ${groupMemberships} WHERE ${groupMemberships.userId} = ${users.id} AND ${groupMemberships.status} = 'active' ORDER BY ${groupMemberships.id} LIMIT 1)`
 			})
 			.from(users)
 			.where(eq(users.id, userId))
@@ -315,7 +316,8 @@ export async function createBooking(actor: Actor, input: BookingInput, now = new
 				purpose: input.purpose,
 				chemicalClasses: input.chemicalClasses,
 				volatileSolvents: input.volatileSolvents,
-				status: (box.needsApproval ? 'pending' : 'confirmed') as BookingStatus
+				status: (box.needsApproval ? 'pending' : 'confirmed') as BookingStatus,
+				confirmedAt: box.needsApproval ? null : now
 			};
 			const [created] = await tx.insert(bookings).values(values).$returningId();
 			await audit(tx, {
@@ -419,6 +421,7 @@ export async function decideBooking(
 					.update(bookings)
 					.set({
 						status: 'confirmed',
+						confirmedAt: now,
 						decidedBy: actor.id,
 						decidedAt: now,
 						sequence: sql`${bookings.sequence} + 1`
@@ -583,13 +586,16 @@ export async function events(
 	const list: CalendarEvent[] = [];
 	for (const b of bookingRows) {
 		const mine = b.userId === viewerId;
+		// A no-show holds the box only until it was marked; the rest of its slot is free.
+		const noShow = b.status === 'no_show';
+		const end = noShow && b.blockedUntil < b.endAt ? b.blockedUntil : b.endAt;
 		list.push({
 			id: `booking-${b.id}`,
 			kind: b.status === 'pending' ? 'pending' : 'booking',
 			boxId: b.boxId,
 			start: isoInZone(b.startAt, tz),
-			end: isoInZone(b.endAt, tz),
-			title: mine ? `You: ${b.purpose}` : b.userName,
+			end: isoInZone(end > b.startAt ? end : b.endAt, tz),
+			title: `${mine ? `You: ${b.purpose}` : b.userName}${noShow ? ' (no-show)' : ''}`,
 			mine,
 			bookingId: b.id,
 			status: b.status

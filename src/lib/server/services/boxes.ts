@@ -17,6 +17,7 @@ import {
 } from '../db/schema';
 import type { Actor } from './accounts';
 import { audit } from './audit';
+import { resettle } from './atmosphere';
 import { isDuplicateKey, notFound, ServiceError } from './errors';
 
 export type BoxSummary = {
@@ -236,6 +237,8 @@ export async function updateBox(actor: Actor, id: number, input: BoxInput): Prom
 			await tx.update(boxes).set(columns(input)).where(eq(boxes.id, id));
 			await writeParts(tx, id, input);
 			await audit(tx, { actorId: actor.id, action: 'box.updated', entity: 'box', entityId: id });
+			// New warn or alarm levels may put the box into alarm or take it out at once.
+			await resettle(tx, id, actor.id);
 		});
 	} catch (e) {
 		if (isDuplicateKey(e)) throw duplicateName();

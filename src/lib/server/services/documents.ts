@@ -4,7 +4,7 @@ import { desc, eq, inArray } from 'drizzle-orm';
 import { documentUrl, type DocumentSummary, type DocumentTarget } from '$lib/domain/documents';
 import { hasRole } from '$lib/domain/roles';
 import { db } from '../db';
-import { boxes, documents, trainingModules, users } from '../db/schema';
+import { boxes, documents, moduleTrainers, trainingModules, users } from '../db/schema';
 import { checkDocument, get, put, remove } from '../storage';
 import { documentFieldsSchema } from '$lib/validation/documents';
 import { fieldErrors } from '$lib/validation/fields';
@@ -63,17 +63,37 @@ export async function documentsForModules(
 	return byModule;
 }
 
-/** Whether the actor may add or remove documents there: managers on boxes, trainers on modules. */
+/**
+ * Whether the actor may add or remove documents there: managers anywhere; on a training
+ * module also the trainers who teach it (as for granting its certifications).
+ */
 export function mayManageDocuments(actor: Pick<Actor, 'role'>, on: 'box' | 'module'): boolean {
 	return hasRole(actor.role, on === 'box' ? 'manager' : 'trainer');
 }
 
-function assertMayManage(actor: Actor, on: 'box' | 'module') {
-	if (mayManageDocuments(actor, on)) return;
+/** The modules whose documents the actor may manage: all for managers, those they teach for trainers. */
+export async function modulesManagedBy(actor: Actor): Promise<Set<number> | 'all'> {
+	if (hasRole(actor.role, 'manager')) return 'all';
+	if (!hasRole(actor.role, 'trainer')) return new Set();
+	const rows = await db
+		.select({ moduleId: moduleTrainers.moduleId })
+		.from(moduleTrainers)
+		.where(eq(moduleTrainers.userId, actor.id));
+	return new Set(rows.map((r) => r.moduleId));
+}
+
+async function assertMayManage(
+	actor: Actor,
+	on: { boxId?: number | null; moduleId?: number | null }
+) {
+	if (on.boxId !== undefined && on.boxId !== null) {
+		if (hasRole(actor.role, 'manager')) return;
+		throw forbidden('Only a manager can add or remove a box’s documents.');
+	}
+	const managed = await modulesManagedBy(actor);
+	if (managed === 'all' || (on.moduleId != null && managed.has(on.moduleId))) return;
 	throw forbidden(
-		on === 'box'
-			? 'Only a manager can add or remove a box’s documents.'
-			: 'Only a trainer or a manager can add or remove a training module’s documents.'
+		'Only a manager or a trainer who teaches this module can add or remove its documents.'
 	);
 }
 
@@ -81,7 +101,7 @@ export type DocumentUpload = { boxId?: number; moduleId?: number; title: string;
 
 /** Checks and stores a PDF, then records it; the stored file is removed again if that fails. */
 export async function addDocument(actor: Actor, input: DocumentUpload) {
-	assertMayManage(actor, input.boxId !== undefined ? 'box' : 'module');
+	await assertMayManage(actor, { boxId: input.boxId, moduleId: input.moduleId });
 	const parsed = documentFieldsSchema.safeParse({
 		title: input.title,
 		boxId: input.boxId,
@@ -149,7 +169,7 @@ export async function addDocument(actor: Actor, input: DocumentUpload) {
 export async function removeDocument(actor: Actor, id: number) {
 	const [doc] = await db.select().from(documents).where(eq(documents.id, id));
 	if (!doc) throw notFound('The document');
-	assertMayManage(actor, doc.boxId !== null ? 'box' : 'module');
+	await assertMayManage(actor, { boxId: doc.boxId, moduleId: doc.moduleId });
 	await db.transaction(async (tx) => {
 		await tx.delete(documents).where(eq(documents.id, id));
 		await audit(tx, {

@@ -201,7 +201,7 @@ export async function getGloveChange(id: number) {
 	// What still holds the box out of service, for boxes that need proof before it returns.
 	const proofMissing = change.completedAt
 		? null
-		: await db.transaction((tx) => missingProof(tx, box.id, change.startedAt));
+		: await db.transaction((tx) => missingProof(tx, box.id, change.steps));
 	// The outage's own audit entries name the bookings it cancelled (creation and any
 	// later extension), so the list is exact, not guessed from reasons or times.
 	const entries = await db
@@ -330,7 +330,7 @@ export async function completeGloveChange(
 			.select({ boxId: boxPorts.boxId })
 			.from(boxPorts)
 			.where(eq(boxPorts.id, change.portId));
-		const proof = port ? await missingProof(tx, port.boxId, change.startedAt) : null;
+		const proof = port ? await missingProof(tx, port.boxId, change.steps) : null;
 		if (proof) throw new ServiceError(422, proof, { fields: { proof } });
 		if (change.oldGloveId) {
 			await tx

@@ -1,5 +1,5 @@
 // Research groups: who leads them, who is in them, and what their people booked.
-import { and, asc, desc, eq, gte, inArray, lt, ne } from 'drizzle-orm';
+import { and, asc, desc, eq, gte, inArray, lt, ne, sql } from 'drizzle-orm';
 import { hasRole } from '$lib/domain/roles';
 import { db } from '../db';
 import {
@@ -150,6 +150,13 @@ export async function removeMember(actor: Actor, groupId: number, userId: number
 			.update(groupMemberships)
 			.set({ status: 'removed', decidedAt: new Date(), decidedBy: actor.id })
 			.where(eq(groupMemberships.id, row.id));
+		// Bookings still ahead go to the person's remaining group (or none); past ones stay.
+		await tx.execute(sql`
+			UPDATE bookings SET group_id = (
+				SELECT gm.group_id FROM group_memberships gm
+				WHERE gm.user_id = ${userId} AND gm.status = 'active' ORDER BY gm.id LIMIT 1)
+			WHERE user_id = ${userId} AND group_id = ${groupId} AND start_at > ${new Date()}
+				AND status IN ('pending', 'confirmed')`);
 		await audit(tx, {
 			actorId: actor.id,
 			action: 'group.member_removed',

@@ -138,16 +138,22 @@ export async function leakTestsOf(boxId: number, limit = 50) {
 }
 
 /**
- * For boxes that ask for it: whether a passing leak test or an in-spec reading has been
- * recorded since `since` (the start of a glove change). Null when the box may go back.
+ * For boxes that ask for it: what still keeps a glove change from ending, or null. The proof
+ * is a passing leak test or a reading under both warn levels recorded after the port cover
+ * came off (the step `cover_removed`): before that the new glove is not open to the box.
  */
 export async function missingProof(
 	tx: Transaction,
 	boxId: number,
-	since: Date
+	steps: { key: string; at: string }[]
 ): Promise<string | null> {
 	const [box] = await tx.select().from(boxes).where(eq(boxes.id, boxId));
 	if (!box?.gloveChangeNeedsProof) return null;
+	const opened = steps.filter((s) => s.key === 'cover_removed').at(-1);
+	if (!opened)
+		return `${box.name} needs a passing leak test or an in-spec reading after the port cover is off: log the cover's removal first.`;
+	// To the second, as the tests and readings it is compared with are stored.
+	const since = new Date(Math.floor(new Date(opened.at).getTime() / 1000) * 1000);
 	const [test] = await tx
 		.select({ id: leakTests.id })
 		.from(leakTests)
@@ -161,5 +167,5 @@ export async function missingProof(
 		.from(atmosphereReadings)
 		.where(and(eq(atmosphereReadings.boxId, boxId), gte(atmosphereReadings.at, since)));
 	if (readings.some((r) => inSpec(r, box))) return null;
-	return `${box.name} goes back into service after a glove change only once a passing leak test or a reading under both warn levels is recorded after the change began.`;
+	return `${box.name} goes back into service after a glove change only once a passing leak test or a reading under both warn levels is recorded after the port cover came off.`;
 }

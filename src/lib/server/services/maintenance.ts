@@ -307,35 +307,37 @@ export async function notifyDueTasks(now = new Date()): Promise<number> {
 		.limit(100);
 	let told = 0;
 	for (const { id } of due) {
-		await db.transaction(async (tx) => {
-			const [task] = await tx
-				.select({
-					id: maintenanceTasks.id,
-					title: maintenanceTasks.title,
-					kind: maintenanceTasks.kind,
-					nextDueAt: maintenanceTasks.nextDueAt,
-					notifiedDueAt: maintenanceTasks.notifiedDueAt,
-					boxId: maintenanceTasks.boxId,
-					boxName: boxes.name
-				})
-				.from(maintenanceTasks)
-				.innerJoin(boxes, eq(boxes.id, maintenanceTasks.boxId))
-				.where(eq(maintenanceTasks.id, id))
-				.for('update', { skipLocked: true });
-			if (!task || task.notifiedDueAt?.getTime() === task.nextDueAt.getTime()) return;
-			await notifyManagers(
-				`${task.boxName}: ${task.title} is due`,
-				`${maintenanceKindLabel[task.kind]} on ${task.boxName} fell due ${formatDateTime(task.nextDueAt, config.facilityTz)}.`,
-				`/boxes/${task.boxId}/maintenance`,
-				`maintenance-due:${task.id}:${task.nextDueAt.toISOString()}`,
-				tx
-			);
-			await tx
-				.update(maintenanceTasks)
-				.set({ notifiedDueAt: task.nextDueAt })
-				.where(eq(maintenanceTasks.id, task.id));
-			told++;
-		});
+		await withRetry(() =>
+			db.transaction(async (tx) => {
+				const [task] = await tx
+					.select({
+						id: maintenanceTasks.id,
+						title: maintenanceTasks.title,
+						kind: maintenanceTasks.kind,
+						nextDueAt: maintenanceTasks.nextDueAt,
+						notifiedDueAt: maintenanceTasks.notifiedDueAt,
+						boxId: maintenanceTasks.boxId,
+						boxName: boxes.name
+					})
+					.from(maintenanceTasks)
+					.innerJoin(boxes, eq(boxes.id, maintenanceTasks.boxId))
+					.where(eq(maintenanceTasks.id, id))
+					.for('update', { skipLocked: true });
+				if (!task || task.notifiedDueAt?.getTime() === task.nextDueAt.getTime()) return;
+				await notifyManagers(
+					`${task.boxName}: ${task.title} is due`,
+					`${maintenanceKindLabel[task.kind]} on ${task.boxName} fell due ${formatDateTime(task.nextDueAt, config.facilityTz)}.`,
+					`/boxes/${task.boxId}/maintenance`,
+					`maintenance-due:${task.id}:${task.nextDueAt.toISOString()}`,
+					tx
+				);
+				await tx
+					.update(maintenanceTasks)
+					.set({ notifiedDueAt: task.nextDueAt })
+					.where(eq(maintenanceTasks.id, task.id));
+				told++;
+			})
+		);
 	}
 	return told;
 }

@@ -117,7 +117,8 @@ export async function facilityReport(
 				endAt: bookings.endAt,
 				status: bookings.status,
 				cancelCause: bookings.cancelCause,
-				cancelledAt: bookings.cancelledAt
+				cancelledAt: bookings.cancelledAt,
+				confirmedAt: bookings.confirmedAt
 			})
 			.from(bookings)
 			.where(

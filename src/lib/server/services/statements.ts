@@ -23,7 +23,8 @@ import {
 } from '../db/schema';
 import type { Actor } from './accounts';
 import { audit } from './audit';
-import { forbidden, ServiceError } from './errors';
+import { forbidden, isDuplicateKey, ServiceError } from './errors';
+import { withRetry } from './bookings';
 import { groupFor } from './groups';
 
 type GroupRef = { id: number; external: boolean };
@@ -58,6 +59,8 @@ async function usageBookings(
 			cancelledAt: bookings.cancelledAt,
 			checkInAt: bookings.checkInAt,
 			checkOutAt: bookings.checkOutAt,
+			confirmedAt: bookings.confirmedAt,
+			heldUntil: bookings.blockedUntil,
 			rateInternal: boxes.rateInternal,
 			rateExternal: boxes.rateExternal,
 			cancelWindowHours: boxes.cancelWindowHours
@@ -69,8 +72,10 @@ async function usageBookings(
 			and(eq(bookings.groupId, group.id), lt(bookings.startAt, end), gt(bookings.endAt, start))
 		)
 		.orderBy(asc(bookings.startAt));
-	return rows.map(({ rateInternal, rateExternal, ...b }) => ({
+	return rows.map(({ rateInternal, rateExternal, heldUntil, ...b }) => ({
 		...b,
+		// blocked_until is when a no-show's slot was freed; for others it is not used.
+		heldUntil: b.status === 'no_show' ? heldUntil : null,
 		rate: group.external ? rateExternal : rateInternal
 	}));
 }
@@ -145,6 +150,16 @@ export async function closeMonth(actor: Actor, monthText: string, now = new Date
 	const month = monthParam(monthText);
 	if (!monthIsOver(month, config.facilityTz, now))
 		throw new ServiceError(422, `${month} is not over yet.`, undefined, 'month_not_over');
+	try {
+		return await withRetry(() => closeIn(actor, month, now));
+	} catch (e) {
+		// Two managers closing the same month at once: the second finds it done.
+		if (isDuplicateKey(e)) throw new ServiceError(409, `${month} is already closed.`);
+		throw e;
+	}
+}
+
+async function closeIn(actor: Actor, month: string, now: Date) {
 	return db.transaction(async (tx) => {
 		const [already] = await tx
 			.select()

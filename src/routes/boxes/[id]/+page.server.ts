@@ -13,6 +13,7 @@ import { attempt } from '$lib/server/services/errors';
 import { latestReadings, recordReading } from '$lib/server/services/atmosphere';
 import { documentsFor, mayManageDocuments } from '$lib/server/services/documents';
 import { readingFromForm } from '$lib/validation/readings';
+import { formId } from '$lib/server/forms';
 import type { Actions, PageServerLoad } from './$types';
 
 export const load: PageServerLoad = async (event) => {
@@ -43,7 +44,15 @@ export const load: PageServerLoad = async (event) => {
 		volumeL: box.volumeL,
 		description: box.description,
 		outages: await boxOutages(id),
-		readings: await latestReadings(id, 8),
+		// Notes on readings are for the managers they were sent to.
+		readings: (await latestReadings(id, 8)).map((r) => ({
+			id: r.id,
+			at: r.at,
+			o2Ppm: r.o2Ppm,
+			h2oPpm: r.h2oPpm,
+			source: r.source,
+			note: hasRole(user.role, 'manager') ? r.note : null
+		})),
 		documents: await documentsFor({ boxId: id }),
 		canManageDocuments: mayManageDocuments(user, 'box'),
 		gloves: await glovesOfBox(id),
@@ -123,7 +132,7 @@ export const actions: Actions = {
 	},
 	gloveChange: async (event) => {
 		const actor = requireRole(event, 'manager');
-		const portId = Number((await event.request.formData()).get('portId'));
+		const portId = formId((await event.request.formData()).get('portId'));
 		const result = await attempt(() => startGloveChange(actor, portId));
 		if (!result.ok)
 			return fail(result.error.status, { form: 'glove', message: result.error.message });
@@ -131,7 +140,7 @@ export const actions: Actions = {
 	},
 	endOutage: async (event) => {
 		const actor = requireRole(event, 'manager');
-		const id = Number((await event.request.formData()).get('outageId'));
+		const id = formId((await event.request.formData()).get('outageId'));
 		const result = await attempt(() => endOutage(actor, id));
 		if (!result.ok)
 			return fail(result.error.status, { form: 'end', message: result.error.message });
@@ -146,7 +155,7 @@ export const actions: Actions = {
 				form: 'extend',
 				message: 'Enter an expected end date and time that exist.'
 			});
-		const result = await attempt(() => extendOutage(actor, Number(values.outageId), end));
+		const result = await attempt(() => extendOutage(actor, formId(values.outageId), end));
 		if (!result.ok)
 			return fail(result.error.status, { form: 'extend', message: result.error.message });
 		return { form: 'extend', cancelled: result.value.cancelledBookingIds.length };

@@ -15,6 +15,7 @@ import {
 import { recentMonths, usageThisMonth } from '$lib/server/services/statements';
 import { fieldErrors } from '$lib/validation/fields';
 import { groupSchema } from '$lib/validation/groups';
+import { formId } from '$lib/server/forms';
 import type { Actions, PageServerLoad } from './$types';
 
 export const load: PageServerLoad = async (event) => {
@@ -52,7 +53,7 @@ async function act(
 	call: (userId: number) => Promise<unknown>
 ) {
 	requireUser(event);
-	const userId = Number((await event.request.formData()).get('userId'));
+	const userId = formId((await event.request.formData()).get('userId'));
 	const result: Attempt<unknown> = await attempt(() => call(userId));
 	if (!result.ok) return fail(result.error.status, { message: result.error.message });
 	return { done: true };

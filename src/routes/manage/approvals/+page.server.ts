@@ -6,6 +6,7 @@ import { approveAccount, declineAccount, pendingAccountsFor } from '$lib/server/
 import { attempt } from '$lib/server/services/errors';
 import { decisionSchema } from '$lib/validation/account';
 import { declineSchema } from '$lib/validation/bookings';
+import { formId } from '$lib/server/forms';
 import type { Actions, PageServerLoad, RequestEvent } from './$types';
 
 export const load: PageServerLoad = async (event) => {
@@ -32,7 +33,7 @@ export const actions: Actions = {
 	decline: (event) => decide(event, declineAccount),
 	approveBooking: async (event) => {
 		const user = requireRole(event, 'manager');
-		const id = Number((await event.request.formData()).get('bookingId'));
+		const id = formId((await event.request.formData()).get('bookingId'));
 		if (!Number.isSafeInteger(id) || id <= 0) return fail(400, { message: 'Choose a booking.' });
 		const result = await attempt(() => decideBooking(user, id, 'approve'));
 		if (!result.ok) return fail(result.error.status, { message: result.error.message });

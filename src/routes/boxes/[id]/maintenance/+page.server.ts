@@ -18,6 +18,7 @@ import {
 	updateTask
 } from '$lib/server/services/maintenance';
 import { fieldErrors } from '$lib/validation/fields';
+import { formId } from '$lib/server/forms';
 import type { Actions, PageServerLoad } from './$types';
 
 export const load: PageServerLoad = async (event) => {
@@ -61,8 +62,11 @@ function parseTask(values: Values) {
 	const { lastDone, ...task } = parsed.data;
 	let lastDoneAt: Date | null = null;
 	if (lastDone) {
-		lastDoneAt = fromLocal(lastDone, '12:00', config.facilityTz);
-		if (!lastDoneAt) return { errors: { lastDone: 'Enter a date that exists.' } };
+		// Midday on that date, or now when that is today and midday has not come yet.
+		const noon = fromLocal(lastDone, '12:00', config.facilityTz);
+		if (!noon) return { errors: { lastDone: 'Enter a date that exists.' } };
+		lastDoneAt =
+			noon > new Date() && noon.getTime() - Date.now() < 12 * 3_600_000 ? new Date() : noon;
 	}
 	return { task: { ...task, lastDoneAt } };
 }
@@ -99,7 +103,7 @@ export const actions: Actions = {
 		const { task, errors } = parseTask(values);
 		if (!task)
 			return fail(400, { form: `task-${values.taskId}`, values, errors, message: undefined });
-		const result = await attempt(() => updateTask(actor, Number(values.taskId), task));
+		const result = await attempt(() => updateTask(actor, formId(values.taskId), task));
 		if (!result.ok) return refused(`task-${values.taskId}`, values, result.error);
 		return { form: `task-${values.taskId}`, saved: true };
 	},
@@ -114,7 +118,7 @@ export const actions: Actions = {
 				errors: { note: 'Use at most 500 characters.' },
 				message: undefined
 			});
-		const result = await attempt(() => completeTask(actor, Number(values.taskId), note));
+		const result = await attempt(() => completeTask(actor, formId(values.taskId), note));
 		if (!result.ok) return refused(`task-${values.taskId}`, values, result.error);
 		return { form: `task-${values.taskId}`, done: result.value };
 	},
@@ -129,14 +133,14 @@ export const actions: Actions = {
 			errors.minutes = 'Give the length in whole minutes, 15 to 10,080.';
 		if (Object.keys(errors).length)
 			return fail(400, { form: `task-${values.taskId}`, values, errors, message: undefined });
-		const result = await attempt(() => planOutage(actor, Number(values.taskId), start!, minutes));
+		const result = await attempt(() => planOutage(actor, formId(values.taskId), start!, minutes));
 		if (!result.ok) return refused(`task-${values.taskId}`, values, result.error);
 		return { form: `task-${values.taskId}`, planned: result.value.cancelledBookingIds.length };
 	},
 	retire: async (event) => {
 		const actor = requireRole(event, 'manager');
 		const values = Object.fromEntries(await event.request.formData()) as Values;
-		const result = await attempt(() => retireTask(actor, Number(values.taskId)));
+		const result = await attempt(() => retireTask(actor, formId(values.taskId)));
 		if (!result.ok) return refused(`task-${values.taskId}`, values, result.error);
 		return { form: 'retire', retired: true };
 	}
