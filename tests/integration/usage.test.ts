@@ -4,7 +4,7 @@
 import { afterAll, describe, expect, it } from 'vitest';
 import { eq } from 'drizzle-orm';
 import { DateTime } from 'luxon';
-import { bookings, notifications } from '../../src/lib/server/db/schema';
+import { bookings, groupMemberships, notifications } from '../../src/lib/server/db/schema';
 import { closeTestDb, makeBox, makeGroup, makeUser, testDb } from '../support/db';
 import { errorOf, signedIn } from '../support/http';
 import { until } from '../support/until';
@@ -214,6 +214,49 @@ describe('monthly statement', () => {
 		});
 		expect(page.status).toBe(400);
 		expect(await page.text()).toContain('A rate cannot be below zero.');
+	});
+});
+
+describe('the group a booking is billed to', () => {
+	it('is the group joined first unless the booker picks another of their own', async () => {
+		const first = await makeGroup('first');
+		const second = await makeGroup('second');
+		const stranger = await makeGroup('stranger');
+		const person = await makeUser('member', { group: first.id });
+		await testDb()
+			.insert(groupMemberships)
+			.values({ groupId: second.id, userId: person.id, status: 'active' });
+		const member = await signedIn(person);
+		const boxId = await makeBox();
+		const at = (hour: number) => {
+			const start = DateTime.now()
+				.setZone('Europe/Berlin')
+				.startOf('day')
+				.plus({ days: 3, hours: hour });
+			return { start: start.toISO(), end: start.plus({ hours: 1 }).toISO() };
+		};
+		const plain = await member.post('/api/bookings', { boxId, ...at(8), purpose: 'Default group' });
+		const picked = await member.post('/api/bookings', {
+			boxId,
+			...at(10),
+			purpose: 'Picked',
+			groupId: second.id
+		});
+		const [a, b] = await Promise.all([plain.json(), picked.json()]);
+		const groupOf = async (id: number) =>
+			(await testDb().select().from(bookings).where(eq(bookings.id, id)))[0].groupId;
+		expect(await groupOf(a.booking.id)).toBe(first.id);
+		expect(await groupOf(b.booking.id)).toBe(second.id);
+		const refused = await member.post('/api/bookings', {
+			boxId,
+			...at(12),
+			purpose: 'Not mine',
+			groupId: stranger.id
+		});
+		expect(refused.status).toBe(400);
+		expect((await errorOf(refused)).details).toEqual({
+			fields: { groupId: 'Choose one of your groups.' }
+		});
 	});
 });
 

@@ -29,7 +29,13 @@ export const bookingSchema = z
 			)
 			.max(20)
 			.default([]),
-		volatileSolvents: z.boolean().default(false)
+		volatileSolvents: z.boolean().default(false),
+		/** The group billed; one of the booker's own. Omitted: the group they joined first. */
+		groupId: z
+			.number({ error: 'Choose one of your groups.' })
+			.int('Choose one of your groups.')
+			.positive('Choose one of your groups.')
+			.optional()
 	})
 	.refine((v) => !(v.start instanceof Date && v.end instanceof Date) || v.end > v.start, {
 		path: ['end'],

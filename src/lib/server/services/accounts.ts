@@ -125,7 +125,8 @@ export async function profile(userId: number) {
 		.from(groupMemberships)
 		.innerJoin(researchGroups, eq(researchGroups.id, groupMemberships.groupId))
 		.where(and(eq(groupMemberships.userId, userId), eq(groupMemberships.status, 'active')))
-		.orderBy(asc(groupMemberships.requestedAt));
+		// The group joined first leads: it is the one bookings are billed to by default.
+		.orderBy(asc(groupMemberships.id));
 	const led = await groupsLedBy(userId);
 	const primary = groups[0] ?? null;
 	return {

@@ -132,9 +132,10 @@ async function readGates(userId: number, boxId: number) {
 				emailConfirmations: users.emailConfirmations,
 				// The group billed for the booking: the booker's oldest active membership (the
 				// group they joined first), so joining another group later moves nothing.
+				// Spelled out: inside a subquery the builder's column names lose their tables.
 				groupId: sql<
 					number | null
-				>`(SELECT ${groupMemberships.groupId} FROM ${groupMemberships} WHERE ${groupMemberships.userId} = ${users.id} AND ${groupMemberships.status} = 'active' ORDER BY ${groupMemberships.id} LIMIT 1)`
+				>`(SELECT gm.group_id FROM group_memberships gm WHERE gm.user_id = users.id AND gm.status = 'active' ORDER BY gm.id LIMIT 1)`
 			})
 			.from(users)
 			.where(eq(users.id, userId))
@@ -300,6 +301,23 @@ function refusal(reasons: Reason[], status: 409 | 422): ServiceError {
  */
 export async function createBooking(actor: Actor, input: BookingInput, now = new Date()) {
 	const gates = await readGates(actor.id, input.boxId);
+	const groupId = input.groupId ?? gates.person?.groupId ?? null;
+	if (input.groupId !== undefined) {
+		const [member] = await db
+			.select({ id: groupMemberships.id })
+			.from(groupMemberships)
+			.where(
+				and(
+					eq(groupMemberships.userId, actor.id),
+					eq(groupMemberships.groupId, input.groupId),
+					eq(groupMemberships.status, 'active')
+				)
+			);
+		if (!member)
+			throw new ServiceError(400, 'You can only bill a booking to a group you are in.', {
+				fields: { groupId: 'Choose one of your groups.' }
+			});
+	}
 	return withRetry(() =>
 		db.transaction(async (tx) => {
 			const { box, result, blockedUntil } = await evaluate(tx, actor.id, input, now, gates);
@@ -309,7 +327,7 @@ export async function createBooking(actor: Actor, input: BookingInput, now = new
 			const values = {
 				boxId: box.id,
 				userId: actor.id,
-				groupId: gates.person?.groupId ?? null,
+				groupId,
 				startAt: input.start,
 				endAt: input.end,
 				blockedUntil,
