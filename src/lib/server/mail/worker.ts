@@ -6,6 +6,7 @@
 import nodemailer, { type Transporter } from 'nodemailer';
 import { and, eq, inArray, lte, or, sql } from 'drizzle-orm';
 import { db } from '../db';
+import { transaction } from '../db/transaction';
 import { outbox } from '../db/schema';
 
 export const MAX_ATTEMPTS = Number(process.env.OUTBOX_MAX_ATTEMPTS ?? 8);
@@ -42,7 +43,7 @@ function transport(): Transporter {
 }
 
 async function claim(limit: number) {
-	return db.transaction(async (tx) => {
+	return transaction(async (tx) => {
 		const now = new Date();
 		const due = await tx
 			.select({ id: outbox.id })

@@ -6,6 +6,7 @@ import { clearFailedSignIns, recordFailedSignIn, signInRetryAfter } from '../rat
 import { hasRole } from '../guard';
 import { audit } from './audit';
 import { forbidden, isDuplicateKey, notFound, ServiceError } from './errors';
+import { transaction } from '../db/transaction';
 
 export type Actor = { id: number; role: Role };
 
@@ -24,7 +25,7 @@ export async function register(input: Registration): Promise<number> {
 
 	const passwordHash = await hashPassword(input.password);
 	try {
-		return await db.transaction(async (tx) => {
+		return await transaction(async (tx) => {
 			const [created] = await tx
 				.insert(users)
 				.values({ name: input.name, email: input.email, passwordHash, status: 'pending' })
@@ -203,7 +204,7 @@ async function decidablePending(actor: Actor, userId: number) {
 
 export async function approveAccount(actor: Actor, userId: number) {
 	const row = await decidablePending(actor, userId);
-	await db.transaction(async (tx) => {
+	await transaction(async (tx) => {
 		const now = new Date();
 		await tx
 			.update(users)
@@ -228,7 +229,7 @@ export async function approveAccount(actor: Actor, userId: number) {
 /** Declining removes the pending account, so the person may register again. */
 export async function declineAccount(actor: Actor, userId: number) {
 	const row = await decidablePending(actor, userId);
-	await db.transaction(async (tx) => {
+	await transaction(async (tx) => {
 		const [removed] = await tx
 			.select({ email: users.email })
 			.from(users)
@@ -255,7 +256,7 @@ export async function changePassword(userId: number, current: string, next: stri
 		throw new ServiceError(400, message, { fields: { currentPassword: message } });
 	}
 	const passwordHash = await hashPassword(next);
-	await db.transaction(async (tx) => {
+	await transaction(async (tx) => {
 		await tx.update(users).set({ passwordHash }).where(eq(users.id, userId));
 		await audit(tx, {
 			actorId: userId,
@@ -310,7 +311,7 @@ export async function setRole(actor: Actor, userId: number, role: Role) {
 	const [user] = await db.select({ role: users.role }).from(users).where(eq(users.id, userId));
 	if (!user) throw notFound('The user');
 	if (user.role === role) return;
-	await db.transaction(async (tx) => {
+	await transaction(async (tx) => {
 		await tx.update(users).set({ role }).where(eq(users.id, userId));
 		await audit(tx, {
 			actorId: actor.id,

@@ -18,7 +18,7 @@ import type { Actor } from './accounts';
 import { audit } from './audit';
 import { isDuplicateKey, notFound, ServiceError } from './errors';
 import { notifyManagers } from './notifications';
-import { withRetry } from './bookings';
+import { transaction } from '../db/transaction';
 
 type Source = 'manual' | 'check_in' | 'check_out' | 'csv';
 
@@ -176,13 +176,11 @@ export async function withReadings<T>(
 	work: (tx: Transaction, box: LockedBox) => Promise<T>
 ): Promise<{ value: T; state: AtmosphereState }> {
 	// The notices it may queue meet the outbox worker's locks; a deadlock victim runs again.
-	return withRetry(() =>
-		db.transaction(async (tx) => {
-			const box = await lockBox(tx, boxId);
-			const value = await work(tx, box);
-			return { value, state: await settleState(tx, box, actorId) };
-		})
-	);
+	return transaction(async (tx) => {
+		const box = await lockBox(tx, boxId);
+		const value = await work(tx, box);
+		return { value, state: await settleState(tx, box, actorId) };
+	});
 }
 
 export async function recordReading(actor: Actor, boxId: number, input: ReadingInput) {

@@ -24,28 +24,7 @@ import { audit } from './audit';
 import { forbidden, notFound, ServiceError } from './errors';
 import { bookingConfirmed } from '../mail/messages';
 import { enqueue } from '../mail/outbox';
-
-const DEADLOCK = new Set(['ER_LOCK_DEADLOCK', 'ER_LOCK_WAIT_TIMEOUT']);
-
-function isRetryable(e: unknown): boolean {
-	const err = e as { code?: string; errno?: number; cause?: { code?: string; errno?: number } };
-	const code = err?.code ?? err?.cause?.code;
-	const errno = err?.errno ?? err?.cause?.errno;
-	// 1213 is also what a Galera certification conflict reports.
-	return (code !== undefined && DEADLOCK.has(code)) || errno === 1213 || errno === 1205;
-}
-
-/** Runs a transaction again when MariaDB chose it as a deadlock victim. */
-export async function withRetry<T>(work: () => Promise<T>, attempts = 4): Promise<T> {
-	for (let i = 1; ; i++) {
-		try {
-			return await work();
-		} catch (e) {
-			if (i >= attempts || !isRetryable(e)) throw e;
-			await new Promise((done) => setTimeout(done, 10 * 2 ** i + Math.random() * 20));
-		}
-	}
-}
+import { transaction } from '../db/transaction';
 
 export type PublicBooking = {
 	id: number;
@@ -318,49 +297,47 @@ export async function createBooking(actor: Actor, input: BookingInput, now = new
 				fields: { groupId: 'Choose one of your groups.' }
 			});
 	}
-	return withRetry(() =>
-		db.transaction(async (tx) => {
-			const { box, result, blockedUntil } = await evaluate(tx, actor.id, input, now, gates);
-			const status = refusalStatus(result);
-			if (status) throw refusal(result.reasons, status);
+	return transaction(async (tx) => {
+		const { box, result, blockedUntil } = await evaluate(tx, actor.id, input, now, gates);
+		const status = refusalStatus(result);
+		if (status) throw refusal(result.reasons, status);
 
-			const values = {
+		const values = {
+			boxId: box.id,
+			userId: actor.id,
+			groupId,
+			startAt: input.start,
+			endAt: input.end,
+			blockedUntil,
+			purpose: input.purpose,
+			chemicalClasses: input.chemicalClasses,
+			volatileSolvents: input.volatileSolvents,
+			status: (box.needsApproval ? 'pending' : 'confirmed') as BookingStatus,
+			confirmedAt: box.needsApproval ? null : now
+		};
+		const [created] = await tx.insert(bookings).values(values).$returningId();
+		await audit(tx, {
+			actorId: actor.id,
+			action: 'booking.created',
+			entity: 'booking',
+			entityId: created.id,
+			details: {
 				boxId: box.id,
-				userId: actor.id,
-				groupId,
-				startAt: input.start,
-				endAt: input.end,
-				blockedUntil,
-				purpose: input.purpose,
-				chemicalClasses: input.chemicalClasses,
-				volatileSolvents: input.volatileSolvents,
-				status: (box.needsApproval ? 'pending' : 'confirmed') as BookingStatus,
-				confirmedAt: box.needsApproval ? null : now
-			};
-			const [created] = await tx.insert(bookings).values(values).$returningId();
-			await audit(tx, {
-				actorId: actor.id,
-				action: 'booking.created',
-				entity: 'booking',
-				entityId: created.id,
-				details: {
-					boxId: box.id,
-					start: input.start.toISOString(),
-					end: input.end.toISOString(),
-					status: values.status
-				}
-			});
-			if (values.status === 'confirmed' && gates.person?.emailConfirmations) {
-				await queueConfirmation(
-					tx,
-					{ id: actor.id, ...gates.person },
-					{ id: created.id, ...values, sequence: 0 },
-					box
-				);
+				start: input.start.toISOString(),
+				end: input.end.toISOString(),
+				status: values.status
 			}
-			return { id: created.id, ...values, cancelReason: null, cancelCause: null };
-		})
-	);
+		});
+		if (values.status === 'confirmed' && gates.person?.emailConfirmations) {
+			await queueConfirmation(
+				tx,
+				{ id: actor.id, ...gates.person },
+				{ id: created.id, ...values, sequence: 0 },
+				box
+			);
+		}
+		return { id: created.id, ...values, cancelReason: null, cancelCause: null };
+	});
 }
 
 async function queueConfirmation(
@@ -385,7 +362,7 @@ export async function cancelBooking(
 	reason: string | undefined,
 	now = new Date()
 ) {
-	return db.transaction(async (tx) => {
+	return transaction(async (tx) => {
 		const [booking] = await tx.select().from(bookings).where(eq(bookings.id, id)).for('update');
 		if (!booking) throw notFound('The booking');
 		const isOwner = booking.userId === actor.id;
@@ -428,63 +405,61 @@ export async function decideBooking(
 	now = new Date()
 ) {
 	if (!hasRole(actor.role, 'manager')) throw forbidden('Only a manager can approve bookings.');
-	return withRetry(() =>
-		db.transaction(async (tx) => {
-			const [booking] = await tx.select().from(bookings).where(eq(bookings.id, id)).for('update');
-			if (!booking) throw notFound('The booking');
-			if (booking.status !== 'pending')
-				throw new ServiceError(409, 'This booking is no longer waiting for approval.');
-			if (decision === 'approve') {
-				await tx
-					.update(bookings)
-					.set({
-						status: 'confirmed',
-						confirmedAt: now,
-						decidedBy: actor.id,
-						decidedAt: now,
-						sequence: sql`${bookings.sequence} + 1`
-					})
-					.where(eq(bookings.id, id));
-				const [person] = await tx
-					.select({
-						id: users.id,
-						email: users.email,
-						name: users.name,
-						emailConfirmations: users.emailConfirmations
-					})
-					.from(users)
-					.where(eq(users.id, booking.userId));
-				const [box] = await tx
-					.select({ name: boxes.name, room: boxes.room })
-					.from(boxes)
-					.where(eq(boxes.id, booking.boxId));
-				if (person?.emailConfirmations && box) {
-					await queueConfirmation(tx, person, { ...booking, sequence: booking.sequence + 1 }, box);
-				}
-			} else {
-				await tx
-					.update(bookings)
-					.set({
-						status: 'cancelled',
-						cancelCause: 'manager',
-						cancelReason: reason ?? 'Declined.',
-						cancelledAt: now,
-						cancelledBy: actor.id,
-						decidedBy: actor.id,
-						decidedAt: now,
-						sequence: sql`${bookings.sequence} + 1`
-					})
-					.where(eq(bookings.id, id));
+	return transaction(async (tx) => {
+		const [booking] = await tx.select().from(bookings).where(eq(bookings.id, id)).for('update');
+		if (!booking) throw notFound('The booking');
+		if (booking.status !== 'pending')
+			throw new ServiceError(409, 'This booking is no longer waiting for approval.');
+		if (decision === 'approve') {
+			await tx
+				.update(bookings)
+				.set({
+					status: 'confirmed',
+					confirmedAt: now,
+					decidedBy: actor.id,
+					decidedAt: now,
+					sequence: sql`${bookings.sequence} + 1`
+				})
+				.where(eq(bookings.id, id));
+			const [person] = await tx
+				.select({
+					id: users.id,
+					email: users.email,
+					name: users.name,
+					emailConfirmations: users.emailConfirmations
+				})
+				.from(users)
+				.where(eq(users.id, booking.userId));
+			const [box] = await tx
+				.select({ name: boxes.name, room: boxes.room })
+				.from(boxes)
+				.where(eq(boxes.id, booking.boxId));
+			if (person?.emailConfirmations && box) {
+				await queueConfirmation(tx, person, { ...booking, sequence: booking.sequence + 1 }, box);
 			}
-			await audit(tx, {
-				actorId: actor.id,
-				action: decision === 'approve' ? 'booking.approved' : 'booking.declined',
-				entity: 'booking',
-				entityId: id,
-				details: reason ? { reason } : undefined
-			});
-		})
-	);
+		} else {
+			await tx
+				.update(bookings)
+				.set({
+					status: 'cancelled',
+					cancelCause: 'manager',
+					cancelReason: reason ?? 'Declined.',
+					cancelledAt: now,
+					cancelledBy: actor.id,
+					decidedBy: actor.id,
+					decidedAt: now,
+					sequence: sql`${bookings.sequence} + 1`
+				})
+				.where(eq(bookings.id, id));
+		}
+		await audit(tx, {
+			actorId: actor.id,
+			action: decision === 'approve' ? 'booking.approved' : 'booking.declined',
+			entity: 'booking',
+			entityId: id,
+			details: reason ? { reason } : undefined
+		});
+	});
 }
 
 export async function pendingBookings() {

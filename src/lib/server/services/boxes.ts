@@ -19,6 +19,7 @@ import type { Actor } from './accounts';
 import { audit } from './audit';
 import { resettle } from './atmosphere';
 import { isDuplicateKey, notFound, ServiceError } from './errors';
+import { transaction } from '../db/transaction';
 
 export type BoxSummary = {
 	id: number;
@@ -207,7 +208,7 @@ function duplicateName(): ServiceError {
 
 export async function createBox(actor: Actor, input: BoxInput): Promise<number> {
 	try {
-		return await db.transaction(async (tx) => {
+		return await transaction(async (tx) => {
 			const [created] = await tx.insert(boxes).values(columns(input)).$returningId();
 			await writeParts(tx, created.id, input);
 			await audit(tx, {
@@ -227,7 +228,7 @@ export async function createBox(actor: Actor, input: BoxInput): Promise<number> 
 
 export async function updateBox(actor: Actor, id: number, input: BoxInput): Promise<void> {
 	try {
-		await db.transaction(async (tx) => {
+		await transaction(async (tx) => {
 			const [existing] = await tx
 				.select({ id: boxes.id })
 				.from(boxes)

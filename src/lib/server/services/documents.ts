@@ -11,6 +11,7 @@ import { fieldErrors } from '$lib/validation/fields';
 import type { Actor } from './accounts';
 import { audit } from './audit';
 import { forbidden, notFound, ServiceError } from './errors';
+import { transaction } from '../db/transaction';
 
 export const DOCUMENTS_FOLDER = 'documents';
 
@@ -133,7 +134,7 @@ export async function addDocument(actor: Actor, input: DocumentUpload) {
 	const storageKey = await put(DOCUMENTS_FOLDER, checked.bytes, checked.ext);
 	const uploadedAt = new Date();
 	try {
-		const id = await db.transaction(async (tx) => {
+		const id = await transaction(async (tx) => {
 			const [created] = await tx
 				.insert(documents)
 				.values({
@@ -170,7 +171,7 @@ export async function removeDocument(actor: Actor, id: number) {
 	const [doc] = await db.select().from(documents).where(eq(documents.id, id));
 	if (!doc) throw notFound('The document');
 	await assertMayManage(actor, { boxId: doc.boxId, moduleId: doc.moduleId });
-	await db.transaction(async (tx) => {
+	await transaction(async (tx) => {
 		await tx.delete(documents).where(eq(documents.id, id));
 		await audit(tx, {
 			actorId: actor.id,

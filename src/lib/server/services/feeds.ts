@@ -10,6 +10,7 @@ import { db } from '../db';
 import { bookings, boxes, outages, users } from '../db/schema';
 import { bookingUid } from '../ical';
 import { audit } from './audit';
+import { transaction } from '../db/transaction';
 
 /** 32 random bytes (256 bits) as base64url: 43 characters. */
 const TOKEN_PATTERN = /^[A-Za-z0-9_-]{43}$/;
@@ -23,7 +24,7 @@ export function looksLikeToken(token: string): boolean {
 /** A new feed secret for the user; the old one stops working at once. Only the hash is kept. */
 export async function newFeedToken(userId: number): Promise<string> {
 	const token = randomBytes(32).toString('base64url');
-	await db.transaction(async (tx) => {
+	await transaction(async (tx) => {
 		await tx
 			.update(users)
 			.set({ feedTokenHash: hashToken(token), feedTokenCreatedAt: new Date() })

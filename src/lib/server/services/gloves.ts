@@ -28,6 +28,7 @@ import { audit } from './audit';
 import { forbidden, notFound, ServiceError } from './errors';
 import { closeOutage, openOutage } from './outages';
 import { missingProof } from './leak-tests';
+import { transaction } from '../db/transaction';
 
 /** The glove on each of a box's ports now, with its last inspection. */
 export async function glovesOfBox(boxId: number) {
@@ -100,7 +101,7 @@ export async function reportDamage(actor: Actor, input: DamageReport, now = new 
 	const [glove] = await db.select().from(gloves).where(eq(gloves.id, input.gloveId));
 	if (!glove || glove.removedAt) throw notFound('The glove');
 	const catastrophic = isCatastrophic(input.holeSizeMm);
-	const [created] = await db.transaction(async (tx) => {
+	const [created] = await transaction(async (tx) => {
 		const row = await tx
 			.insert(gloveInspections)
 			.values({
@@ -161,7 +162,7 @@ export async function startGloveChange(
 			fields: { end: 'The expected end must be in the future.' }
 		});
 
-	return db.transaction(async (tx) => {
+	return transaction(async (tx) => {
 		const { outageId, cancelledBookingIds } = await openOutage(
 			tx,
 			actor,
@@ -201,7 +202,7 @@ export async function getGloveChange(id: number) {
 	// What still holds the box out of service, for boxes that need proof before it returns.
 	const proofMissing = change.completedAt
 		? null
-		: await db.transaction((tx) => missingProof(tx, box.id, change.steps));
+		: await transaction((tx) => missingProof(tx, box.id, change.steps));
 	// The outage's own audit entries name the bookings it cancelled (creation and any
 	// later extension), so the list is exact, not guessed from reasons or times.
 	const entries = await db
@@ -270,7 +271,7 @@ export async function recordStep(
 		throw new ServiceError(400, 'Record the new glove’s material, size, thickness and hand.');
 	}
 	const [who] = await db.select({ name: users.name }).from(users).where(eq(users.id, actor.id));
-	await db.transaction(async (tx) => {
+	await transaction(async (tx) => {
 		const [change] = await tx
 			.select()
 			.from(gloveChanges)
@@ -308,7 +309,7 @@ export async function completeGloveChange(
 ) {
 	if (!hasRole(actor.role, 'manager'))
 		throw forbidden('Only a manager can complete a glove change.');
-	return db.transaction(async (tx) => {
+	return transaction(async (tx) => {
 		const [change] = await tx
 			.select()
 			.from(gloveChanges)

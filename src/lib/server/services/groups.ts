@@ -15,6 +15,7 @@ import type { Actor } from './accounts';
 import { audit } from './audit';
 import { forbidden, isDuplicateKey, notFound, ServiceError } from './errors';
 import { certificationState } from './training';
+import { transaction } from '../db/transaction';
 
 /** Group names for the registration form (no PI or cost centre: that page is public). */
 export async function listGroupNames() {
@@ -145,7 +146,7 @@ export async function removeMember(actor: Actor, groupId: number, userId: number
 		throw new ServiceError(409, 'The PI cannot be removed; a manager can name another PI first.');
 	const row = await membership(groupId, userId);
 	if (!row || row.status === 'removed') throw notFound('That member');
-	await db.transaction(async (tx) => {
+	await transaction(async (tx) => {
 		await tx
 			.update(groupMemberships)
 			.set({ status: 'removed', decidedAt: new Date(), decidedBy: actor.id })
@@ -183,7 +184,7 @@ export async function decideMembership(
 		.where(eq(users.id, userId));
 	if (person?.status === 'pending')
 		throw new ServiceError(409, 'This is a new registration; decide it on the approvals page.');
-	await db.transaction(async (tx) => {
+	await transaction(async (tx) => {
 		await tx
 			.update(groupMemberships)
 			.set({ status: approve ? 'active' : 'removed', decidedAt: new Date(), decidedBy: actor.id })
@@ -208,7 +209,7 @@ export async function requestMembership(actor: Actor, groupId: number) {
 	const row = await membership(groupId, actor.id);
 	if (row?.status === 'active') throw new ServiceError(409, 'You are already in this group.');
 	if (row?.status === 'pending') throw new ServiceError(409, 'Your request is already waiting.');
-	await db.transaction(async (tx) => {
+	await transaction(async (tx) => {
 		if (row)
 			await tx
 				.update(groupMemberships)
@@ -235,7 +236,7 @@ export type GroupInput = {
 export async function saveGroup(actor: Actor, input: GroupInput, groupId?: number) {
 	if (!hasRole(actor.role, 'manager')) throw forbidden('Only a manager can create or edit groups.');
 	try {
-		return await db.transaction(async (tx) => {
+		return await transaction(async (tx) => {
 			let id = groupId;
 			if (id) {
 				const [found] = await tx

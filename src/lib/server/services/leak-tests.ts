@@ -21,6 +21,7 @@ import { atmosphereReadings, boxes, leakTests, users } from '../db/schema';
 import type { Actor } from './accounts';
 import { audit } from './audit';
 import { forbidden, notFound, ServiceError } from './errors';
+import { transaction } from '../db/transaction';
 
 export type LeakTestInput =
 	| ({ method: 'oxygen' } & OxygenInput)
@@ -85,7 +86,7 @@ export async function recordLeakTest(
 ) {
 	if (!hasRole(actor.role, 'manager')) throw forbidden('Only a manager records leak tests.');
 	const result = evaluate(input);
-	return db.transaction(async (tx) => {
+	return transaction(async (tx) => {
 		const [box] = await tx
 			.select({ id: boxes.id, requiredLeakClass: boxes.requiredLeakClass })
 			.from(boxes)

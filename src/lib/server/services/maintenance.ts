@@ -17,7 +17,7 @@ import { audit } from './audit';
 import { forbidden, notFound, ServiceError } from './errors';
 import { notifyManagers } from './notifications';
 import { closeOutage, openOutage } from './outages';
-import { withRetry } from './bookings';
+import { transaction } from '../db/transaction';
 
 export type TaskInput = {
 	kind: MaintenanceKind;
@@ -34,7 +34,7 @@ function mustManage(actor: Actor) {
 
 export async function createTask(actor: Actor, boxId: number, input: TaskInput, now = new Date()) {
 	mustManage(actor);
-	return db.transaction(async (tx) => {
+	return transaction(async (tx) => {
 		const [box] = await tx.select({ id: boxes.id }).from(boxes).where(eq(boxes.id, boxId));
 		if (!box) throw notFound('The box');
 		const last = input.lastDoneAt ?? null;
@@ -83,7 +83,7 @@ export async function updateTask(
 	now = new Date()
 ) {
 	mustManage(actor);
-	await db.transaction(async (tx) => {
+	await transaction(async (tx) => {
 		const task = await lockTask(tx, taskId);
 		await tx
 			.update(maintenanceTasks)
@@ -109,7 +109,7 @@ export async function updateTask(
 
 export async function retireTask(actor: Actor, taskId: number) {
 	mustManage(actor);
-	await db.transaction(async (tx) => {
+	await transaction(async (tx) => {
 		await lockTask(tx, taskId);
 		await tx.update(maintenanceTasks).set({ active: false }).where(eq(maintenanceTasks.id, taskId));
 		await audit(tx, {
@@ -132,7 +132,7 @@ export async function completeTask(
 	now = new Date()
 ) {
 	mustManage(actor);
-	return db.transaction(async (tx) => {
+	return transaction(async (tx) => {
 		const task = await lockTask(tx, taskId);
 		if (!task.active) throw new ServiceError(409, 'This task is retired.');
 		let endedOutage = false;
@@ -179,46 +179,44 @@ export async function planOutage(
 	now = new Date()
 ) {
 	mustManage(actor);
-	return withRetry(() =>
-		db.transaction(async (tx) => {
-			const task = await lockTask(tx, taskId);
-			const length = minutes ?? task.outageMinutes;
-			if (!(length > 0))
-				throw new ServiceError(400, 'Give the outage a length in minutes.', {
-					fields: { minutes: 'Give the outage a length in minutes.' }
-				});
-			if (start.getTime() < now.getTime() - 60_000)
-				throw new ServiceError(400, 'A planned outage cannot start in the past.', {
-					fields: { start: 'That start is in the past.' }
-				});
-			if (task.plannedOutageId) {
-				const [existing] = await tx
-					.select({ endAt: outages.endAt })
-					.from(outages)
-					.where(eq(outages.id, task.plannedOutageId));
-				if (existing && existing.endAt > now)
-					throw new ServiceError(409, 'This task already has a planned outage.');
-			}
-			const end = new Date(start.getTime() + length * 60_000);
-			const { outageId, cancelledBookingIds } = await openOutage(
-				tx,
-				actor,
-				task.boxId,
-				{
-					start,
-					end,
-					kind: outageKindFor[task.kind],
-					reason: `Planned maintenance: ${task.title}`
-				},
-				now
-			);
-			await tx
-				.update(maintenanceTasks)
-				.set({ plannedOutageId: outageId })
-				.where(eq(maintenanceTasks.id, taskId));
-			return { outageId, cancelledBookingIds, end };
-		})
-	);
+	return transaction(async (tx) => {
+		const task = await lockTask(tx, taskId);
+		const length = minutes ?? task.outageMinutes;
+		if (!(length > 0))
+			throw new ServiceError(400, 'Give the outage a length in minutes.', {
+				fields: { minutes: 'Give the outage a length in minutes.' }
+			});
+		if (start.getTime() < now.getTime() - 60_000)
+			throw new ServiceError(400, 'A planned outage cannot start in the past.', {
+				fields: { start: 'That start is in the past.' }
+			});
+		if (task.plannedOutageId) {
+			const [existing] = await tx
+				.select({ endAt: outages.endAt })
+				.from(outages)
+				.where(eq(outages.id, task.plannedOutageId));
+			if (existing && existing.endAt > now)
+				throw new ServiceError(409, 'This task already has a planned outage.');
+		}
+		const end = new Date(start.getTime() + length * 60_000);
+		const { outageId, cancelledBookingIds } = await openOutage(
+			tx,
+			actor,
+			task.boxId,
+			{
+				start,
+				end,
+				kind: outageKindFor[task.kind],
+				reason: `Planned maintenance: ${task.title}`
+			},
+			now
+		);
+		await tx
+			.update(maintenanceTasks)
+			.set({ plannedOutageId: outageId })
+			.where(eq(maintenanceTasks.id, taskId));
+		return { outageId, cancelledBookingIds, end };
+	});
 }
 
 const taskColumns = {
@@ -307,37 +305,35 @@ export async function notifyDueTasks(now = new Date()): Promise<number> {
 		.limit(100);
 	let told = 0;
 	for (const { id } of due) {
-		await withRetry(() =>
-			db.transaction(async (tx) => {
-				const [task] = await tx
-					.select({
-						id: maintenanceTasks.id,
-						title: maintenanceTasks.title,
-						kind: maintenanceTasks.kind,
-						nextDueAt: maintenanceTasks.nextDueAt,
-						notifiedDueAt: maintenanceTasks.notifiedDueAt,
-						boxId: maintenanceTasks.boxId,
-						boxName: boxes.name
-					})
-					.from(maintenanceTasks)
-					.innerJoin(boxes, eq(boxes.id, maintenanceTasks.boxId))
-					.where(eq(maintenanceTasks.id, id))
-					.for('update', { skipLocked: true });
-				if (!task || task.notifiedDueAt?.getTime() === task.nextDueAt.getTime()) return;
-				await notifyManagers(
-					`${task.boxName}: ${task.title} is due`,
-					`${maintenanceKindLabel[task.kind]} on ${task.boxName} fell due ${formatDateTime(task.nextDueAt, config.facilityTz)}.`,
-					`/boxes/${task.boxId}/maintenance`,
-					`maintenance-due:${task.id}:${task.nextDueAt.toISOString()}`,
-					tx
-				);
-				await tx
-					.update(maintenanceTasks)
-					.set({ notifiedDueAt: task.nextDueAt })
-					.where(eq(maintenanceTasks.id, task.id));
-				told++;
-			})
-		);
+		await transaction(async (tx) => {
+			const [task] = await tx
+				.select({
+					id: maintenanceTasks.id,
+					title: maintenanceTasks.title,
+					kind: maintenanceTasks.kind,
+					nextDueAt: maintenanceTasks.nextDueAt,
+					notifiedDueAt: maintenanceTasks.notifiedDueAt,
+					boxId: maintenanceTasks.boxId,
+					boxName: boxes.name
+				})
+				.from(maintenanceTasks)
+				.innerJoin(boxes, eq(boxes.id, maintenanceTasks.boxId))
+				.where(eq(maintenanceTasks.id, id))
+				.for('update', { skipLocked: true });
+			if (!task || task.notifiedDueAt?.getTime() === task.nextDueAt.getTime()) return;
+			await notifyManagers(
+				`${task.boxName}: ${task.title} is due`,
+				`${maintenanceKindLabel[task.kind]} on ${task.boxName} fell due ${formatDateTime(task.nextDueAt, config.facilityTz)}.`,
+				`/boxes/${task.boxId}/maintenance`,
+				`maintenance-due:${task.id}:${task.nextDueAt.toISOString()}`,
+				tx
+			);
+			await tx
+				.update(maintenanceTasks)
+				.set({ notifiedDueAt: task.nextDueAt })
+				.where(eq(maintenanceTasks.id, task.id));
+			told++;
+		});
 	}
 	return told;
 }

@@ -8,7 +8,7 @@ import { bookings, boxes, users } from '../db/schema';
 import { bookingNoShow } from '../mail/messages';
 import { enqueue } from '../mail/outbox';
 import { audit } from './audit';
-import { withRetry } from './bookings';
+import { transaction } from '../db/transaction';
 
 export async function markNoShows(now = new Date()): Promise<number[]> {
 	const due = await db
@@ -26,48 +26,48 @@ export async function markNoShows(now = new Date()): Promise<number[]> {
 		.limit(200);
 	const marked: number[] = [];
 	for (const { id } of due) {
-		await withRetry(() =>
-			db.transaction(async (tx) => {
-				// Only the booking row is locked: the box row stays free for bookings meanwhile.
-				const [row] = await tx
-					.select()
-					.from(bookings)
-					.where(eq(bookings.id, id))
-					.for('update', { skipLocked: true });
-				if (!row) return;
-				const [box] = await tx
-					.select({ boxName: boxes.name, room: boxes.room, graceMin: boxes.noShowGraceMin })
-					.from(boxes)
-					.where(eq(boxes.id, row.boxId));
-				const b = { ...row, ...box };
-				if (b.status !== 'confirmed' || b.checkInAt) return;
-				if (b.startAt.getTime() + b.graceMin * 60_000 > now.getTime() || b.endAt <= now) return;
-				await tx
-					.update(bookings)
-					.set({ status: 'no_show', blockedUntil: now, sequence: sql`${bookings.sequence} + 1` })
-					.where(eq(bookings.id, id));
-				await audit(tx, {
-					actorId: null,
-					action: 'booking.no_show',
-					entity: 'booking',
-					entityId: id,
-					details: { graceMin: b.graceMin }
+		// True once it is marked; pushed after the commit, so a retried run counts it once.
+		const done = await transaction(async (tx) => {
+			// Only the booking row is locked: the box row stays free for bookings meanwhile.
+			const [row] = await tx
+				.select()
+				.from(bookings)
+				.where(eq(bookings.id, id))
+				.for('update', { skipLocked: true });
+			if (!row) return false;
+			const [box] = await tx
+				.select({ boxName: boxes.name, room: boxes.room, graceMin: boxes.noShowGraceMin })
+				.from(boxes)
+				.where(eq(boxes.id, row.boxId));
+			const b = { ...row, ...box };
+			if (b.status !== 'confirmed' || b.checkInAt) return false;
+			if (b.startAt.getTime() + b.graceMin * 60_000 > now.getTime() || b.endAt <= now) return false;
+			await tx
+				.update(bookings)
+				.set({ status: 'no_show', blockedUntil: now, sequence: sql`${bookings.sequence} + 1` })
+				.where(eq(bookings.id, id));
+			await audit(tx, {
+				actorId: null,
+				action: 'booking.no_show',
+				entity: 'booking',
+				entityId: id,
+				details: { graceMin: b.graceMin }
+			});
+			const [person] = await tx
+				.select({ id: users.id, email: users.email, name: users.name })
+				.from(users)
+				.where(eq(users.id, b.userId));
+			if (person) {
+				const message = bookingNoShow({ ...b, sequence: b.sequence + 1 }, person, b.graceMin);
+				await enqueue(tx, person, message, `booking:${id}:no_show`, {
+					title: `No-show: ${b.boxName}`,
+					body: `Nobody checked in within ${b.graceMin} minutes of the start; the rest of the slot is free again.`,
+					link: '/bookings'
 				});
-				const [person] = await tx
-					.select({ id: users.id, email: users.email, name: users.name })
-					.from(users)
-					.where(eq(users.id, b.userId));
-				if (person) {
-					const message = bookingNoShow({ ...b, sequence: b.sequence + 1 }, person, b.graceMin);
-					await enqueue(tx, person, message, `booking:${id}:no_show`, {
-						title: `No-show: ${b.boxName}`,
-						body: `Nobody checked in within ${b.graceMin} minutes of the start; the rest of the slot is free again.`,
-						link: '/bookings'
-					});
-				}
-				marked.push(id);
-			})
-		);
+			}
+			return true;
+		});
+		if (done) marked.push(id);
 	}
 	return marked;
 }

@@ -3,7 +3,7 @@ import { db, type Transaction } from '../db';
 import { notifications, outbox, users } from '../db/schema';
 import { staffNotice } from '../mail/messages';
 import { enqueue } from '../mail/outbox';
-import { withRetry } from './bookings';
+import { transaction } from '../db/transaction';
 
 export async function unreadCount(userId: number): Promise<number> {
 	const [row] = await db
@@ -71,6 +71,5 @@ export async function notifyManagers(
 			await enqueue(t, person, message, `${dedupe}:${person.id}`, { title, body, link });
 		}
 	};
-	// On its own, the transaction may meet the outbox worker's locks: a deadlock victim runs again.
-	await (tx ? run(tx) : withRetry(() => db.transaction(run)));
+	await (tx ? run(tx) : transaction(run));
 }

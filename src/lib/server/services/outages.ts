@@ -1,15 +1,15 @@
 import { and, eq, gt, inArray, lt, sql } from 'drizzle-orm';
 import type { OutageKind } from '$lib/domain/bookings';
 import { hasRole } from '$lib/domain/roles';
-import { db, type Transaction } from '../db';
+import type { Transaction } from '../db';
 import { bookings, boxes, outages, users } from '../db/schema';
 import { bookingCancelled } from '../mail/messages';
 import { enqueueMany, type Outgoing } from '../mail/outbox';
 import type { Actor } from './accounts';
 import { audit } from './audit';
 import { alternativeFinder } from './alternatives';
-import { withRetry } from './bookings';
 import { forbidden, notFound, ServiceError } from './errors';
+import { transaction } from '../db/transaction';
 
 export type OutageInput = { start: Date; end: Date; kind: OutageKind; reason: string };
 
@@ -116,13 +116,11 @@ export async function createOutage(
 			fields: { end: 'The expected end must be after the start.' }
 		});
 	}
-	return withRetry(() =>
-		db.transaction(async (tx) => {
-			const { outageId, cancelledBookingIds } = await openOutage(tx, actor, boxId, input, now);
-			const [outage] = await tx.select().from(outages).where(eq(outages.id, outageId));
-			return { outage, cancelledBookingIds };
-		})
-	);
+	return transaction(async (tx) => {
+		const { outageId, cancelledBookingIds } = await openOutage(tx, actor, boxId, input, now);
+		const [outage] = await tx.select().from(outages).where(eq(outages.id, outageId));
+		return { outage, cancelledBookingIds };
+	});
 }
 
 /** The body of createOutage, for callers that open an outage inside their own transaction. */
@@ -175,45 +173,39 @@ export async function openOutage(
 /** Moves the expected end. A later end cancels what the longer outage now overlaps. */
 export async function extendOutage(actor: Actor, outageId: number, end: Date, now = new Date()) {
 	if (!hasRole(actor.role, 'manager')) throw forbidden('Only a manager can change an outage.');
-	return withRetry(() =>
-		db.transaction(async (tx) => {
-			const [current] = await tx
-				.select()
-				.from(outages)
-				.where(eq(outages.id, outageId))
-				.for('update');
-			if (!current) throw notFound('The outage');
-			if (end <= current.startAt) {
-				throw new ServiceError(400, 'The expected end must be after the start.', {
-					fields: { end: 'The expected end must be after the start.' }
-				});
-			}
-			const box = await lockBox(tx, current.boxId);
-			await tx
-				.update(outages)
-				.set({ endAt: end, sequence: sql`${outages.sequence} + 1` })
-				.where(eq(outages.id, outageId));
-			const cancelledBookingIds =
-				end > current.endAt
-					? await cancelOverlapping(tx, actor, box, current.endAt, end, current.reason, now)
-					: [];
-			await audit(tx, {
-				actorId: actor.id,
-				action: 'outage.changed',
-				entity: 'outage',
-				entityId: outageId,
-				details: { from: current.endAt.toISOString(), to: end.toISOString(), cancelledBookingIds }
+	return transaction(async (tx) => {
+		const [current] = await tx.select().from(outages).where(eq(outages.id, outageId)).for('update');
+		if (!current) throw notFound('The outage');
+		if (end <= current.startAt) {
+			throw new ServiceError(400, 'The expected end must be after the start.', {
+				fields: { end: 'The expected end must be after the start.' }
 			});
-			const [outage] = await tx.select().from(outages).where(eq(outages.id, outageId));
-			return { outage, cancelledBookingIds };
-		})
-	);
+		}
+		const box = await lockBox(tx, current.boxId);
+		await tx
+			.update(outages)
+			.set({ endAt: end, sequence: sql`${outages.sequence} + 1` })
+			.where(eq(outages.id, outageId));
+		const cancelledBookingIds =
+			end > current.endAt
+				? await cancelOverlapping(tx, actor, box, current.endAt, end, current.reason, now)
+				: [];
+		await audit(tx, {
+			actorId: actor.id,
+			action: 'outage.changed',
+			entity: 'outage',
+			entityId: outageId,
+			details: { from: current.endAt.toISOString(), to: end.toISOString(), cancelledBookingIds }
+		});
+		const [outage] = await tx.select().from(outages).where(eq(outages.id, outageId));
+		return { outage, cancelledBookingIds };
+	});
 }
 
 /** Ends an outage now: the box is back in service. Cancelled bookings stay cancelled. */
 export async function endOutage(actor: Actor, outageId: number, now = new Date()) {
 	if (!hasRole(actor.role, 'manager')) throw forbidden('Only a manager can end an outage.');
-	await db.transaction((tx) => closeOutage(tx, actor, outageId, now));
+	await transaction((tx) => closeOutage(tx, actor, outageId, now));
 }
 
 /** Ends an outage inside the caller's transaction (a completed glove change does this). */

@@ -24,8 +24,8 @@ import {
 import type { Actor } from './accounts';
 import { audit } from './audit';
 import { forbidden, isDuplicateKey, ServiceError } from './errors';
-import { withRetry } from './bookings';
 import { groupFor } from './groups';
+import { transaction } from '../db/transaction';
 
 type GroupRef = { id: number; external: boolean };
 
@@ -151,7 +151,7 @@ export async function closeMonth(actor: Actor, monthText: string, now = new Date
 	if (!monthIsOver(month, config.facilityTz, now))
 		throw new ServiceError(422, `${month} is not over yet.`, undefined, 'month_not_over');
 	try {
-		return await withRetry(() => closeIn(actor, month, now));
+		return await closeIn(actor, month, now);
 	} catch (e) {
 		// Two managers closing the same month at once: the second finds it done.
 		if (isDuplicateKey(e)) throw new ServiceError(409, `${month} is already closed.`);
@@ -160,7 +160,7 @@ export async function closeMonth(actor: Actor, monthText: string, now = new Date
 }
 
 async function closeIn(actor: Actor, month: string, now: Date) {
-	return db.transaction(async (tx) => {
+	return transaction(async (tx) => {
 		const [already] = await tx
 			.select()
 			.from(closedMonths)

@@ -15,6 +15,7 @@ import {
 import type { Actor } from './accounts';
 import { audit } from './audit';
 import { forbidden, isDuplicateKey, notFound, ServiceError } from './errors';
+import { transaction } from '../db/transaction';
 
 export type CertificationState = 'current' | 'expiring' | 'expired' | 'revoked' | 'none';
 
@@ -194,7 +195,7 @@ export async function grantCertification(actor: Actor, input: Grant, now = new D
 		}
 	}
 
-	return db.transaction(async (tx) => {
+	return transaction(async (tx) => {
 		const [created] = await tx
 			.insert(certifications)
 			.values({
@@ -227,7 +228,7 @@ export async function revokeCertification(actor: Actor, certificationId: number,
 		throw forbidden('Only a trainer who teaches this module or a manager can revoke it.');
 	}
 	if (cert.revokedAt) throw new ServiceError(409, 'This certification is already revoked.');
-	await db.transaction(async (tx) => {
+	await transaction(async (tx) => {
 		await tx
 			.update(certifications)
 			.set({ revokedAt: new Date(), revokedBy: actor.id, revokeReason: reason })
@@ -311,7 +312,7 @@ export type ModuleInput = {
 export async function createModule(actor: Actor, input: ModuleInput) {
 	if (!hasRole(actor.role, 'manager')) throw forbidden('Only a manager can add training modules.');
 	try {
-		return await db.transaction(async (tx) => {
+		return await transaction(async (tx) => {
 			const [created] = await tx
 				.insert(trainingModules)
 				.values({
