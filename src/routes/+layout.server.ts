@@ -8,16 +8,21 @@ import type { LayoutServerLoad } from './$types';
 export const load: LayoutServerLoad = async ({ locals }) => {
 	const user = locals.user;
 	if (!user) return { user: null, tz: config.facilityTz };
-	const led = await groupsLedBy(user.id);
+	// Every page runs this: a handful of indexed counts, side by side.
+	const isManager = user.role === 'manager' || user.role === 'admin';
+	const [led, unread, checkPrompt, pendingBookings] = await Promise.all([
+		groupsLedBy(user.id),
+		unreadCount(user.id),
+		pendingCheck(user.id),
+		isManager ? countPendingBookings() : 0
+	]);
 	const isPi = led.length > 0;
-	const canApprove = isPi || user.role === 'manager' || user.role === 'admin';
 	return {
 		tz: config.facilityTz,
 		user: { id: user.id, name: user.name, email: user.email, role: user.role, isPi },
-		unread: await unreadCount(user.id),
-		checkPrompt: await pendingCheck(user.id),
-		pendingApprovals: canApprove ? await countPendingFor(user) : 0,
-		pendingBookings:
-			user.role === 'manager' || user.role === 'admin' ? await countPendingBookings() : 0
+		unread,
+		checkPrompt,
+		pendingApprovals: isPi || isManager ? await countPendingFor(user) : 0,
+		pendingBookings
 	};
 };

@@ -10,6 +10,7 @@ import type { PageServerLoad } from './$types';
 
 export const load: PageServerLoad = async (event) => {
 	const user = requireUser(event);
+	const { user: shell } = await event.parent();
 	const [me, mine, boxes, certs] = await Promise.all([
 		profile(user.id),
 		bookingsOf(user.id),
@@ -21,7 +22,7 @@ export const load: PageServerLoad = async (event) => {
 		isManager ? dueTasks() : [],
 		isManager ? failedMessages() : 0,
 		hasRole(user.role, 'trainer') ? trainingNeeds(user.id) : null,
-		groupsUsage(user.id)
+		shell?.isPi ? groupsUsage(user.id) : []
 	]);
 	return {
 		group: me.group,

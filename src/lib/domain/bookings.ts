@@ -39,3 +39,13 @@ export const statusLabel: Record<BookingStatus, string> = {
 	completed: 'Completed',
 	no_show: 'No-show'
 };
+
+/** The longest booking a box may allow (the box editor's limit, 7 days). */
+export const LONGEST_BOOKING_MS = 7 * 86_400_000;
+/** The longest purge after volatile solvents a box may set (the box editor's limit, 12 h). */
+export const LONGEST_PURGE_MS = 12 * 3_600_000;
+/**
+ * A hold (booking plus purge) that reaches an instant started at most this long before it:
+ * the lower bound on start_at that lets range reads use the (…, start_at) indexes.
+ */
+export const LONGEST_HOLD_MS = LONGEST_BOOKING_MS + LONGEST_PURGE_MS;

@@ -77,6 +77,14 @@ export const gloveChangeSteps = [
 ] as const;
 export type GloveChangeStepKey = (typeof gloveChangeSteps)[number]['key'];
 
+/**
+ * Whether a fitted glove stands damaged: a damage report stands until one says the glove
+ * was replaced (or a new glove is fitted, which starts a new history).
+ */
+export function isDamaged(inspections: { damaged: boolean; action: string }[]): boolean {
+	return inspections.some((i) => i.damaged && i.action !== 'replaced');
+}
+
 /** Gloves are replaced about yearly (common practice); from 11 months one is due. */
 export const GLOVE_DUE_MONTHS = 11;
 

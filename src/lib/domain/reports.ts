@@ -13,7 +13,7 @@
 //   Cancellations by a manager or for an outage are never the booker's doing.
 import { DateTime } from 'luxon';
 import { outageKinds, type BookingStatus, type CancelCause, type OutageKind } from './bookings';
-import { GLOVE_DUE_MONTHS, gloveState } from './gloves';
+import { GLOVE_DUE_MONTHS, gloveState, isDamaged } from './gloves';
 
 const HOUR_MS = 3_600_000;
 const DAY_MS = 86_400_000;
@@ -437,7 +437,7 @@ export function gloveWear(p: {
 		.filter((i) => i.at >= installedAt && i.at <= now)
 		.reduce<WearInspection | null>((a, i) => (!a || i.at > a.at ? i : a), null);
 	const lastCheckAt = last?.at ?? installedAt;
-	const damaged = p.inspections.some((i) => i.damaged && i.action !== 'replaced');
+	const damaged = isDamaged(p.inspections);
 	const ageDays = Math.max(0, Math.floor((now.getTime() - installedAt.getTime()) / DAY_MS));
 	const daysSinceCheck = Math.max(0, Math.floor((now.getTime() - lastCheckAt.getTime()) / DAY_MS));
 	const bookedHoursSinceCheck = bookedSince(lastCheckAt);

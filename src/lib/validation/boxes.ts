@@ -1,5 +1,6 @@
 import { z } from 'zod';
 import { chemicalClassKeys, gases } from '$lib/domain/boxes';
+import { LONGEST_BOOKING_MS, LONGEST_PURGE_MS } from '$lib/domain/bookings';
 
 const minutes = (label: string, min: number, max: number) =>
 	z.coerce
@@ -48,14 +49,14 @@ export const boxSchema = z
 		rateExternal: rate,
 		slotStepMin: minutes('the slot step', 5, 240),
 		minLengthMin: minutes('the shortest booking', 5, 1440),
-		maxLengthMin: minutes('the longest booking', 5, 10080),
+		maxLengthMin: minutes('the longest booking', 5, LONGEST_BOOKING_MS / 60_000),
 		horizonDays: z.coerce
 			.number()
 			.int()
 			.min(1, 'At least 1 day ahead.')
 			.max(365, 'At most a year ahead.'),
 		weeklyQuotaMin: minutes('the weekly quota', 0, 10080),
-		purgeMin: minutes('the purge time', 0, 720),
+		purgeMin: minutes('the purge time', 0, LONGEST_PURGE_MS / 60_000),
 		needsApproval: z.coerce.boolean().default(false),
 		requiredLeakClass: z.coerce
 			.number({ error: 'Choose a leak-tightness class.' })

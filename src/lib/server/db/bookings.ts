@@ -58,7 +58,9 @@ export const bookings = mysqlTable(
 		index('bookings_box_start_idx').on(t.boxId, t.startAt),
 		index('bookings_box_end_idx').on(t.boxId, t.blockedUntil),
 		index('bookings_user_start_idx').on(t.userId, t.startAt),
-		index('bookings_group_start_idx').on(t.groupId, t.startAt)
+		index('bookings_group_start_idx').on(t.groupId, t.startAt),
+		// Pending counts on every manager's page, and the no-show sweep.
+		index('bookings_status_start_idx').on(t.status, t.startAt)
 	]
 );
 

@@ -1,4 +1,4 @@
-import { and, asc, eq, inArray, sql } from 'drizzle-orm';
+import { and, asc, count, eq, inArray, sql } from 'drizzle-orm';
 import { db } from '../db';
 import { groupMemberships, researchGroups, users, type Role, type UserStatus } from '../db/schema';
 import { hashPassword, verifyDecoy, verifyPassword } from '../password';
@@ -176,8 +176,18 @@ export async function pendingAccountsFor(actor: Actor): Promise<PendingAccount[]
 	return rows;
 }
 
+/** How many registrations wait for the actor: one COUNT, for the badge on every page. */
 export async function countPendingFor(actor: Actor): Promise<number> {
-	return (await pendingAccountsFor(actor)).length;
+	const pending = and(eq(users.status, 'pending'), eq(groupMemberships.status, 'pending'));
+	const [row] = await db
+		.select({ n: count() })
+		.from(users)
+		.innerJoin(groupMemberships, eq(groupMemberships.userId, users.id))
+		.innerJoin(researchGroups, eq(researchGroups.id, groupMemberships.groupId))
+		.where(
+			hasRole(actor.role, 'manager') ? pending : and(pending, eq(researchGroups.piUserId, actor.id))
+		);
+	return row?.n ?? 0;
 }
 
 /** May the actor decide this pending account? Managers always; a PI for their own group. */

@@ -1,4 +1,5 @@
-import { and, eq, gt, inArray, isNull, lt, ne } from 'drizzle-orm';
+import { and, eq, gt, gte, inArray, isNull, lt, ne } from 'drizzle-orm';
+import { LONGEST_HOLD_MS } from '$lib/domain/bookings';
 import { findAlternatives, type Alternative } from '$lib/domain/alternatives';
 import { config } from '../config';
 import type { Database } from '../db/connect';
@@ -31,6 +32,7 @@ export async function alternativeFinder(
 			.where(
 				and(
 					inArray(bookings.status, ['pending', 'confirmed']),
+					gte(bookings.startAt, new Date(now.getTime() - LONGEST_HOLD_MS)),
 					lt(bookings.startAt, until),
 					gt(bookings.blockedUntil, now)
 				)

@@ -1,7 +1,7 @@
 import { and, asc, desc, eq, gt, gte, inArray, lt, sql } from 'drizzle-orm';
 import { DateTime } from 'luxon';
 import { checkBooking, refusalStatus, type Reason } from '$lib/domain/booking-rules';
-import type { BookingStatus } from '$lib/domain/bookings';
+import { LONGEST_HOLD_MS, LONGEST_PURGE_MS, type BookingStatus } from '$lib/domain/bookings';
 import { hasRole } from '$lib/domain/roles';
 import { isoInZone } from '$lib/domain/time';
 import type { BookingInput } from '$lib/validation/bookings';
@@ -82,11 +82,6 @@ function weeksWindow(start: Date, end: Date) {
 		.plus({ weeks: 1 });
 	return { from: from.toJSDate(), to: to.toJSDate() };
 }
-
-/** The longest booking (7 d) plus purge (12 h) fits in this; bounds how far back an overlapping hold starts. */
-const MAX_LOOKBACK_MS = 8 * 86_400_000;
-/** The longest purge a box may set (12 h, see the box form's limits). */
-const MAX_PURGE_MS = 12 * 3_600_000;
 
 /** What does not race with other bookings: read before the box lock is taken. */
 async function readGates(userId: number, boxId: number) {
@@ -190,10 +185,10 @@ async function evaluate(
 ) {
 	// The longest purge and the weeks touched bound the reads; the box's own purge time is
 	// applied below, once its row is in hand.
-	const purgeBound = new Date(input.end.getTime() + MAX_PURGE_MS);
+	const purgeBound = new Date(input.end.getTime() + LONGEST_PURGE_MS);
 	const week = weeksWindow(input.start, input.end);
-	const from = new Date(input.start.getTime() - MAX_LOOKBACK_MS);
-	const weekFrom = new Date(week.from.getTime() - MAX_LOOKBACK_MS);
+	const from = new Date(input.start.getTime() - LONGEST_HOLD_MS);
+	const weekFrom = new Date(week.from.getTime() - LONGEST_HOLD_MS);
 	// One round trip: the lock, then (in the same transaction, after it) what it protects.
 	const [[lockedRows, rows]] = (await tx.execute(sql`
 		SELECT ${sql.raw(BOX_RULE_COLUMNS)} FROM boxes WHERE id = ${input.boxId} FOR UPDATE;
@@ -567,7 +562,7 @@ export async function events(
 					inArray(bookings.status, ['pending', 'confirmed', 'completed', 'no_show']),
 					lt(bookings.startAt, end),
 					gt(bookings.blockedUntil, start),
-					gte(bookings.startAt, new Date(start.getTime() - MAX_LOOKBACK_MS))
+					gte(bookings.startAt, new Date(start.getTime() - LONGEST_HOLD_MS))
 				)
 			)
 			.orderBy(asc(bookings.startAt)),

@@ -1,6 +1,6 @@
 import { and, asc, desc, eq, gt, inArray, isNull, lte, sql } from 'drizzle-orm';
 import { boxCondition, type BoxCondition } from '$lib/domain/boxes';
-import { gloveState, type GloveState } from '$lib/domain/gloves';
+import { gloveState, isDamaged, type GloveState } from '$lib/domain/gloves';
 import type { BoxInput } from '$lib/validation/boxes';
 import { db, type Transaction } from '../db';
 import {
@@ -85,25 +85,28 @@ async function summarise(rows: Box[], now = new Date()): Promise<BoxSummary[]> {
 					.where(and(inArray(gloveChanges.portId, portIds), isNull(gloveChanges.completedAt)))
 			])
 		: [[], []];
-	// A damage report stands until the glove is replaced (a new glove row).
-	const damagedGloves = fitted.length
-		? new Set(
-				(
-					await db
-						.select({ gloveId: gloveInspections.gloveId })
-						.from(gloveInspections)
-						.where(
-							and(
-								inArray(
-									gloveInspections.gloveId,
-									fitted.map((g) => g.id)
-								),
-								eq(gloveInspections.damaged, true)
-							)
-						)
-				).map((r) => r.gloveId)
-			)
-		: new Set<number>();
+	// Damage reports of the fitted gloves; isDamaged decides, as on the box page and reports.
+	const reports = fitted.length
+		? await db
+				.select({
+					gloveId: gloveInspections.gloveId,
+					damaged: gloveInspections.damaged,
+					action: gloveInspections.action
+				})
+				.from(gloveInspections)
+				.where(
+					and(
+						inArray(
+							gloveInspections.gloveId,
+							fitted.map((g) => g.id)
+						),
+						eq(gloveInspections.damaged, true)
+					)
+				)
+		: [];
+	const damagedGloves = new Set(
+		fitted.filter((g) => isDamaged(reports.filter((r) => r.gloveId === g.id))).map((g) => g.id)
+	);
 	const stateOf = (portId: number) => {
 		const glove = fitted.find((g) => g.portId === portId);
 		return gloveState({

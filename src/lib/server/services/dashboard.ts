@@ -10,7 +10,7 @@ import {
 	trainingModules,
 	users
 } from '../db/schema';
-import { usageThisMonth } from './statements';
+import { usageThisMonthFor } from './statements';
 
 /**
  * For a trainer: people whose certification in a module they teach has lapsed or lapses
@@ -75,14 +75,13 @@ export async function failedMessages(): Promise<number> {
 	return row?.n ?? 0;
 }
 
-/** For a PI: each group they lead, with its month so far. */
+/** For a PI: each group they lead, with its month so far (one read for all of them). */
 export async function groupsUsage(piUserId: number, now = new Date()) {
 	const groups = await db
 		.select({ id: researchGroups.id, name: researchGroups.name, external: researchGroups.external })
 		.from(researchGroups)
 		.where(eq(researchGroups.piUserId, piUserId))
 		.orderBy(asc(researchGroups.name));
-	return Promise.all(
-		groups.map(async (g) => ({ ...g, usage: (await usageThisMonth(g, now)).totals }))
-	);
+	const usage = await usageThisMonthFor(groups, now);
+	return groups.map((g) => ({ ...g, usage: usage.get(g.id)!.totals }));
 }

@@ -1,6 +1,7 @@
 // Calendar feeds (RFC 5545) of a person's bookings and of a box's schedule.
 import { createHash, randomBytes } from 'node:crypto';
-import { and, asc, eq, gt, lt } from 'drizzle-orm';
+import { and, asc, eq, gt, gte, lt } from 'drizzle-orm';
+import { LONGEST_BOOKING_MS } from '$lib/domain/bookings';
 import ical, { ICalEventStatus } from 'ical-generator';
 import { DateTime } from 'luxon';
 import { tzlib_get_ical_block } from 'timezones-ical-library';
@@ -117,6 +118,8 @@ function finish(name: string, events: FeedEvent[], now: Date): Feed {
 		hash.update(
 			`|${e.uid}:${e.sequence}:${e.cancelled}:${e.start.getTime()}:${e.end.getTime()}:${e.updatedAt.getTime()}`
 		);
+		// The texts too: renaming a box or a person changes the feed, not the booking row.
+		hash.update(`\u0000${e.summary}\u0000${e.location ?? ''}\u0000${e.description ?? ''}`);
 	}
 	const etag = `"${hash.digest('base64url').slice(0, 27)}"`;
 	return { lastModified, etag, render: () => renderFeed(name, events) };
@@ -141,7 +144,14 @@ export async function userFeed(userId: number, now = new Date()): Promise<Feed> 
 		})
 		.from(bookings)
 		.innerJoin(boxes, eq(boxes.id, bookings.boxId))
-		.where(and(eq(bookings.userId, userId), lt(bookings.startAt, to), gt(bookings.endAt, from)))
+		.where(
+			and(
+				eq(bookings.userId, userId),
+				gte(bookings.startAt, new Date(from.getTime() - LONGEST_BOOKING_MS)),
+				lt(bookings.startAt, to),
+				gt(bookings.endAt, from)
+			)
+		)
 		.orderBy(asc(bookings.startAt));
 	const events: FeedEvent[] = rows.map((b) => ({
 		uid: bookingUid(b.id),
@@ -184,7 +194,14 @@ export async function boxFeed(boxId: number, now = new Date()): Promise<Feed | n
 			})
 			.from(bookings)
 			.innerJoin(users, eq(users.id, bookings.userId))
-			.where(and(eq(bookings.boxId, boxId), lt(bookings.startAt, to), gt(bookings.endAt, from)))
+			.where(
+				and(
+					eq(bookings.boxId, boxId),
+					gte(bookings.startAt, new Date(from.getTime() - LONGEST_BOOKING_MS)),
+					lt(bookings.startAt, to),
+					gt(bookings.endAt, from)
+				)
+			)
 			.orderBy(asc(bookings.startAt)),
 		db
 			.select()

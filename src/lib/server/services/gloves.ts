@@ -5,6 +5,7 @@ import {
 	gloveChangeSteps,
 	handWarning,
 	isCatastrophic,
+	isDamaged,
 	type DamageLocation,
 	type GloveChangeStepKey
 } from '$lib/domain/gloves';
@@ -81,7 +82,7 @@ export async function glovesOfBox(boxId: number) {
 			port,
 			glove,
 			lastInspection: history[0] ?? null,
-			damaged: history.some((i) => i.damaged && i.action !== 'replaced'),
+			damaged: isDamaged(history),
 			openChangeId: open.find((c) => c.portId === port.id)?.id ?? null
 		};
 	});
@@ -148,14 +149,6 @@ export async function startGloveChange(
 		.where(and(eq(gloves.portId, portId), isNull(gloves.removedAt)));
 	if (!glove)
 		throw new ServiceError(409, 'This port has no glove recorded, so there is nothing to change.');
-	const [open] = await db
-		.select({ id: gloveChanges.id })
-		.from(gloveChanges)
-		.where(and(eq(gloveChanges.portId, portId), isNull(gloveChanges.completedAt)));
-	if (open)
-		throw new ServiceError(409, 'A glove change on this port is already under way.', {
-			changeId: open.id
-		});
 	const end = expectedEnd ?? new Date(now.getTime() + 2 * 3_600_000);
 	if (end <= now)
 		throw new ServiceError(400, 'The expected end must be in the future.', {
@@ -175,6 +168,15 @@ export async function startGloveChange(
 			},
 			now
 		);
+		// Asked under the box lock openOutage holds, so two managers cannot both start one.
+		const [open] = await tx
+			.select({ id: gloveChanges.id })
+			.from(gloveChanges)
+			.where(and(eq(gloveChanges.portId, portId), isNull(gloveChanges.completedAt)));
+		if (open)
+			throw new ServiceError(409, 'A glove change on this port is already under way.', {
+				changeId: open.id
+			});
 		const [created] = await tx
 			.insert(gloveChanges)
 			.values({ outageId, portId, oldGloveId: glove.id, startedBy: actor.id, startedAt: now })
@@ -200,9 +202,7 @@ export async function getGloveChange(id: number) {
 		.where(eq(boxes.id, port.boxId));
 	const [outage] = await db.select().from(outages).where(eq(outages.id, change.outageId));
 	// What still holds the box out of service, for boxes that need proof before it returns.
-	const proofMissing = change.completedAt
-		? null
-		: await transaction((tx) => missingProof(tx, box.id, change.steps));
+	const proofMissing = change.completedAt ? null : await missingProof(db, box.id, change.steps);
 	// The outage's own audit entries name the bookings it cancelled (creation and any
 	// later extension), so the list is exact, not guessed from reasons or times.
 	const entries = await db

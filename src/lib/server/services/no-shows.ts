@@ -2,7 +2,9 @@
 // start is marked no-show; the rest of its slot (and its purge buffer) is freed and the
 // booker told. Safe to run from several processes: each booking is claimed with
 // FOR UPDATE SKIP LOCKED and checked again under the lock.
-import { and, eq, gt, isNull, lte, sql } from 'drizzle-orm';
+import { and, eq, gt, gte, isNull, lte, sql } from 'drizzle-orm';
+import { LONGEST_BOOKING_MS } from '$lib/domain/bookings';
+import { noShowDue } from '$lib/domain/usage';
 import { db } from '../db';
 import { bookings, boxes, users } from '../db/schema';
 import { bookingNoShow } from '../mail/messages';
@@ -18,6 +20,9 @@ export async function markNoShows(now = new Date()): Promise<number[]> {
 		.where(
 			and(
 				eq(bookings.status, 'confirmed'),
+				// A booking still running started at most the longest booking ago: the
+				// (status, start_at) index is read from there, not from the first booking.
+				gte(bookings.startAt, new Date(now.getTime() - LONGEST_BOOKING_MS)),
 				isNull(bookings.checkInAt),
 				lte(bookings.startAt, sql`${now} - INTERVAL ${boxes.noShowGraceMin} MINUTE`),
 				gt(bookings.endAt, now)
@@ -40,8 +45,7 @@ export async function markNoShows(now = new Date()): Promise<number[]> {
 				.from(boxes)
 				.where(eq(boxes.id, row.boxId));
 			const b = { ...row, ...box };
-			if (b.status !== 'confirmed' || b.checkInAt) return false;
-			if (b.startAt.getTime() + b.graceMin * 60_000 > now.getTime() || b.endAt <= now) return false;
+			if (!noShowDue(b, b.graceMin, now)) return false;
 			await tx
 				.update(bookings)
 				.set({ status: 'no_show', blockedUntil: now, sequence: sql`${bookings.sequence} + 1` })

@@ -2,7 +2,7 @@ import { and, desc, eq, inArray, isNull, sql } from 'drizzle-orm';
 import { db, type Transaction } from '../db';
 import { notifications, outbox, users } from '../db/schema';
 import { staffNotice } from '../mail/messages';
-import { enqueue } from '../mail/outbox';
+import { enqueueMany } from '../mail/outbox';
 import { transaction } from '../db/transaction';
 
 export async function unreadCount(userId: number): Promise<number> {
@@ -67,9 +67,15 @@ export async function notifyManagers(
 			.from(users)
 			.where(and(inArray(users.role, ['manager', 'admin']), eq(users.status, 'active')));
 		const message = staffNotice(title, body, link);
-		for (const person of staff) {
-			await enqueue(t, person, message, `${dedupe}:${person.id}`, { title, body, link });
-		}
+		await enqueueMany(
+			t,
+			staff.map((to) => ({
+				to,
+				message,
+				dedupeKey: `${dedupe}:${to.id}`,
+				inApp: { title, body, link }
+			}))
+		);
 	};
 	await (tx ? run(tx) : transaction(run));
 }

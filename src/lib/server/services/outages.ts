@@ -1,4 +1,5 @@
-import { and, eq, gt, inArray, lt, sql } from 'drizzle-orm';
+import { and, eq, gt, gte, inArray, lt, sql } from 'drizzle-orm';
+import { LONGEST_BOOKING_MS } from '$lib/domain/bookings';
 import type { OutageKind } from '$lib/domain/bookings';
 import { hasRole } from '$lib/domain/roles';
 import type { Transaction } from '../db';
@@ -43,6 +44,8 @@ async function cancelOverlapping(
 			and(
 				eq(bookings.boxId, box.id),
 				inArray(bookings.status, ['pending', 'confirmed']),
+				// From a point on (box_id, start_at): only the rows read are locked.
+				gte(bookings.startAt, new Date(start.getTime() - LONGEST_BOOKING_MS)),
 				lt(bookings.startAt, end),
 				gt(bookings.endAt, start)
 			)

@@ -20,6 +20,7 @@ import {
 	type Week
 } from '$lib/domain/reports';
 import { config } from '../config';
+import { LONGEST_BOOKING_MS } from '$lib/domain/bookings';
 import { db } from '../db';
 import {
 	bookings,
@@ -30,12 +31,6 @@ import {
 	outages,
 	researchGroups
 } from '../db/schema';
-
-/**
- * How far before a range a booking that reaches into it can start: the longest booking a
- * box may allow (7 days, the box form's limit). It bounds the (box_id, start_at) scans.
- */
-const LONGEST_BOOKING_MS = 7 * 86_400_000;
 
 export type ReportBoxInfo = { id: number; name: string; gas: Gas };
 

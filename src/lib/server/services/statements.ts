@@ -1,6 +1,7 @@
 // Monthly statements per group: worked out from the bookings while a month is open, read
 // from the snapshot taken when a manager closed it, so closed figures never change.
-import { and, asc, desc, eq, gt, lt } from 'drizzle-orm';
+import { and, asc, desc, eq, gt, gte, inArray, lt } from 'drizzle-orm';
+import { LONGEST_BOOKING_MS } from '$lib/domain/bookings';
 import { DateTime } from 'luxon';
 import { hasRole } from '$lib/domain/roles';
 import {
@@ -39,16 +40,23 @@ export function monthParam(text: string): string {
 	return month;
 }
 
-/** The group's bookings that touch the month, each with the rate that applies to the group. */
+/**
+ * The bookings of the given groups (all groups when omitted) that touch the month, each
+ * with the rate that applies to its group, by group id: one indexed range read.
+ */
 async function usageBookings(
 	q: Transaction | typeof db,
-	group: GroupRef,
-	month: string
-): Promise<UsageBooking[]> {
+	month: string,
+	groups?: GroupRef[]
+): Promise<Map<number, UsageBooking[]>> {
 	const { start, end } = monthBounds(month, config.facilityTz);
+	const byGroup = new Map<number, UsageBooking[]>();
+	if (groups && !groups.length) return byGroup;
 	const rows = await q
 		.select({
 			id: bookings.id,
+			groupId: bookings.groupId,
+			external: researchGroups.external,
 			boxId: bookings.boxId,
 			boxName: boxes.name,
 			userName: users.name,
@@ -66,18 +74,41 @@ async function usageBookings(
 			cancelWindowHours: boxes.cancelWindowHours
 		})
 		.from(bookings)
+		.innerJoin(researchGroups, eq(researchGroups.id, bookings.groupId))
 		.innerJoin(boxes, eq(boxes.id, bookings.boxId))
 		.innerJoin(users, eq(users.id, bookings.userId))
 		.where(
-			and(eq(bookings.groupId, group.id), lt(bookings.startAt, end), gt(bookings.endAt, start))
+			and(
+				groups
+					? inArray(
+							bookings.groupId,
+							groups.map((g) => g.id)
+						)
+					: undefined,
+				// A booking reaching into the month started at most the longest booking before it.
+				gte(bookings.startAt, new Date(start.getTime() - LONGEST_BOOKING_MS)),
+				lt(bookings.startAt, end),
+				gt(bookings.endAt, start)
+			)
 		)
 		.orderBy(asc(bookings.startAt));
-	return rows.map(({ rateInternal, rateExternal, heldUntil, ...b }) => ({
-		...b,
-		// blocked_until is when a no-show's slot was freed; for others it is not used.
-		heldUntil: b.status === 'no_show' ? heldUntil : null,
-		rate: group.external ? rateExternal : rateInternal
-	}));
+	for (const { rateInternal, rateExternal, heldUntil, groupId, external, ...b } of rows) {
+		const list = byGroup.get(groupId!) ?? [];
+		list.push({
+			...b,
+			// blocked_until is when a no-show's slot was freed; for others it is not used.
+			heldUntil: b.status === 'no_show' ? heldUntil : null,
+			rate: external ? rateExternal : rateInternal
+		});
+		byGroup.set(groupId!, list);
+	}
+	return byGroup;
+}
+
+/** One group's month, worked out from its bookings now. */
+async function liveStatement(group: GroupRef, month: string) {
+	const rows = (await usageBookings(db, month, [group])).get(group.id) ?? [];
+	return statement(rows, month, config.facilityTz);
 }
 
 /** A statement read back from JSON has its instants as strings. */
@@ -133,15 +164,23 @@ export async function statementFor(
 	}
 	return {
 		group,
-		statement: statement(await usageBookings(db, group, month), month, config.facilityTz),
+		statement: await liveStatement(group, month),
 		closed: null
 	};
 }
 
 /** The month so far, for the PI's dashboard: provisional, never a statement. */
 export async function usageThisMonth(group: GroupRef, now = new Date()) {
+	return (await usageThisMonthFor([group], now)).get(group.id)!;
+}
+
+/** The month so far for several groups, in one read. */
+export async function usageThisMonthFor(groups: GroupRef[], now = new Date()) {
 	const month = DateTime.fromJSDate(now).setZone(config.facilityTz).toFormat('yyyy-MM');
-	return statement(await usageBookings(db, group, month), month, config.facilityTz);
+	const byGroup = await usageBookings(db, month, groups);
+	return new Map(
+		groups.map((g) => [g.id, statement(byGroup.get(g.id) ?? [], month, config.facilityTz)])
+	);
 }
 
 /** Closes a month that is over: every group's statement is frozen as it stands now. */
@@ -168,16 +207,17 @@ async function closeIn(actor: Actor, month: string, now: Date) {
 			.for('update');
 		if (already) throw new ServiceError(409, `${month} is already closed.`);
 		await tx.insert(closedMonths).values({ month, closedBy: actor.id, closedAt: now });
-		const groups = await tx
-			.select({ id: researchGroups.id, external: researchGroups.external })
-			.from(researchGroups);
-		let frozen = 0;
-		for (const group of groups) {
-			const figures = statement(await usageBookings(tx, group, month), month, config.facilityTz);
-			if (!figures.lines.length) continue;
-			await tx.insert(statementSnapshots).values({ month, groupId: group.id, statement: figures });
-			frozen++;
-		}
+		// Every group with a booking in the month, read at once; the others have nothing to freeze.
+		const byGroup = await usageBookings(tx, month);
+		const snapshots = [...byGroup]
+			.map(([groupId, rows]) => ({
+				month,
+				groupId,
+				statement: statement(rows, month, config.facilityTz)
+			}))
+			.filter((s) => s.statement.lines.length);
+		if (snapshots.length) await tx.insert(statementSnapshots).values(snapshots);
+		const frozen = snapshots.length;
 		await audit(tx, {
 			actorId: actor.id,
 			action: 'month.closed',

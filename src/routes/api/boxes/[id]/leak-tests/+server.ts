@@ -3,9 +3,9 @@ import { isoInZone } from '$lib/domain/time';
 import { serve } from '$lib/server/api';
 import { config } from '$lib/server/config';
 import { requireRole, requireUser } from '$lib/server/guard';
-import { readJson } from '$lib/server/http';
+import { fail, readJson } from '$lib/server/http';
 import { idParam } from '$lib/server/params';
-import { getBox } from '$lib/server/services/boxes';
+import { boxExists } from '$lib/server/services/boxes';
 import { leakTestsOf, recordLeakTest } from '$lib/server/services/leak-tests';
 import { leakTestSchema } from '$lib/validation/leak-tests';
 import type { RequestHandler } from './$types';
@@ -34,6 +34,6 @@ export const POST: RequestHandler = async (event) => {
 export const GET: RequestHandler = async (event) => {
 	requireUser(event);
 	const boxId = idParam(event.params.id, 'The box');
-	await serve(() => getBox(boxId));
+	if (!(await boxExists(boxId))) fail(404, 'The box was not found.');
 	return json({ leakTests: (await leakTestsOf(boxId)).map(shape) });
 };

@@ -7,7 +7,7 @@ import { requireRole, requireUser } from '$lib/server/guard';
 import { fail, invalidInput, readJson } from '$lib/server/http';
 import { idParam } from '$lib/server/params';
 import { readingSeries, recordReading } from '$lib/server/services/atmosphere';
-import { getBox } from '$lib/server/services/boxes';
+import { boxExists } from '$lib/server/services/boxes';
 import { readingSchema } from '$lib/validation/readings';
 import { isoDateTime } from '$lib/validation/bookings';
 import type { RequestHandler } from './$types';
@@ -40,7 +40,7 @@ const MAX_RANGE_DAYS = 400;
 export const GET: RequestHandler = async (event) => {
 	requireUser(event);
 	const boxId = idParam(event.params.id, 'The box');
-	await serve(() => getBox(boxId));
+	if (!(await boxExists(boxId))) fail(404, 'The box was not found.');
 	const params = event.url.searchParams;
 	const now = new Date();
 	const parsed = rangeSchema.safeParse({

@@ -1,0 +1,1 @@
+CREATE INDEX `bookings_status_start_idx` ON `bookings` (`status`,`start_at`);
