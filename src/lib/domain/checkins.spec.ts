@@ -1,5 +1,5 @@
 import { describe, expect, it } from 'vitest';
-import { checkInRefusal, checkOutRefusal, checkPrompt } from './checkins';
+import { checkAction, checkInRefusal, checkOutRefusal, checkPrompt } from './checkins';
 
 const start = new Date('2026-12-02T09:00:00Z');
 const end = new Date('2026-12-02T11:00:00Z');
@@ -36,6 +36,18 @@ describe('check-in and check-out', () => {
 		expect(checkPrompt(inside, at('2026-12-02T10:50:00Z'))).toBe('check_out');
 		expect(
 			checkPrompt({ ...inside, checkOutAt: at('2026-12-02T10:55:00Z') }, at('2026-12-02T11:00:00Z'))
+		).toBeNull();
+	});
+});
+
+describe('checkAction', () => {
+	it('offers check-in from 15 minutes before the start, then check-out, then nothing', () => {
+		expect(checkAction(booking(), at('2026-12-02T08:40:00Z'))).toBeNull();
+		expect(checkAction(booking(), at('2026-12-02T08:50:00Z'))).toBe('in');
+		const inside = booking({ checkInAt: at('2026-12-02T09:02:00Z') });
+		expect(checkAction(inside, at('2026-12-02T09:30:00Z'))).toBe('out');
+		expect(
+			checkAction({ ...inside, checkOutAt: at('2026-12-02T10:55:00Z') }, at('2026-12-02T11:00:00Z'))
 		).toBeNull();
 	});
 });

@@ -48,3 +48,13 @@ export function checkPrompt(b: CheckState, now: Date): 'check_in' | 'check_out' 
 		return 'check_out';
 	return null;
 }
+
+/**
+ * What the booking's holder can do now, for a button: check in (or, already in, check out),
+ * or nothing. Pages offer the button; the check page and the service decide.
+ */
+export function checkAction(b: CheckState, now: Date): 'in' | 'out' | null {
+	if (checkInRefusal(b, now) === null) return 'in';
+	if (checkOutRefusal(b, now) === null) return 'out';
+	return null;
+}

@@ -14,6 +14,7 @@
 import { DateTime } from 'luxon';
 import { outageKinds, type BookingStatus, type CancelCause, type OutageKind } from './bookings';
 import { GLOVE_DUE_MONTHS, gloveState, isDamaged } from './gloves';
+import { billedHoursIn, chargeOf } from './usage';
 
 const HOUR_MS = 3_600_000;
 const DAY_MS = 86_400_000;
@@ -73,6 +74,8 @@ export type ReportBooking = Interval & {
 	cancelledAt: Date | null;
 	/** Null when it was never confirmed (withdrawn while waiting for approval). */
 	confirmedAt?: Date | null;
+	/** For a no-show: when its slot was freed. */
+	heldUntil?: Date | null;
 };
 
 export type ReportBox = { id: number; cancelWindowHours: number };
@@ -168,20 +171,15 @@ export function mergeIntervals(list: Interval[]): Interval[] {
 
 export const isBooked = (status: BookingStatus) => BOOKED_STATUSES.includes(status);
 
-/**
- * Cancelled by the booker later than start − window, or at or after the start: the rule
- * usage.ts bills as booked. Without a recorded time nothing shows it was late.
- */
+/** A late cancellation by the booker, billed as booked: usage.ts's rule, asked of chargeOf. */
 export function isLateCancellation(
-	b: Pick<ReportBooking, 'startAt' | 'status' | 'cancelCause' | 'cancelledAt' | 'confirmedAt'>,
+	b: Pick<
+		ReportBooking,
+		'startAt' | 'endAt' | 'status' | 'cancelCause' | 'cancelledAt' | 'confirmedAt'
+	>,
 	cancelWindowHours: number
 ): boolean {
-	if (b.status !== 'cancelled' || b.cancelCause !== 'user' || !b.cancelledAt) return false;
-	// Withdrawn while waiting for approval: never billed, as in usage.ts.
-	if (b.confirmedAt === null) return false;
-	const at = b.cancelledAt.getTime();
-	const start = b.startAt.getTime();
-	return at >= start || at > start - cancelWindowHours * HOUR_MS;
+	return chargeOf({ ...b, cancelWindowHours, checkInAt: null }).kind === 'late_cancellation';
 }
 
 /** A box's hours against the whole of each week, so a quiet box reads as quiet. */
@@ -255,7 +253,7 @@ export type GroupHours = {
 	bookedHours: number;
 	/** Hours of late cancellations by the booker: billed as booked. */
 	lateCancelledHours: number;
-	/** bookedHours + lateCancelledHours: what the group is billed for. */
+	/** What the statements bill for these: a no-show only until its slot was freed. */
 	billedHours: number;
 	/** Bookings that add to billedHours. */
 	bookings: number;
@@ -273,6 +271,11 @@ export function hoursByGroup(
 		const booked = isBooked(b.status);
 		const late = !booked && isLateCancellation(b, windowOf.get(b.boxId) ?? 0);
 		if (!booked && !late) continue;
+		// What the statement bills: a no-show only until its slot was freed.
+		const billed = billedHoursIn(
+			{ ...b, cancelWindowHours: windowOf.get(b.boxId) ?? 0, checkInAt: null },
+			{ start: range.from, end: range.to }
+		);
 		const hours = hoursWithin(b, range.from, range.to);
 		if (!hours) continue;
 		const g = groups.get(b.groupId) ?? {
@@ -284,7 +287,7 @@ export function hoursByGroup(
 		};
 		if (booked) g.bookedHours += hours;
 		else g.lateCancelledHours += hours;
-		g.billedHours += hours;
+		g.billedHours += billed;
 		g.bookings += 1;
 		groups.set(b.groupId, g);
 	}

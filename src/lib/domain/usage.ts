@@ -55,6 +55,20 @@ export type UsageBooking = {
 	heldUntil?: Date | null;
 };
 
+/** What deciding a booking's charge needs: statements and reports both bill through it. */
+export type Billable = Pick<
+	UsageBooking,
+	| 'status'
+	| 'startAt'
+	| 'endAt'
+	| 'cancelCause'
+	| 'cancelledAt'
+	| 'checkInAt'
+	| 'cancelWindowHours'
+	| 'confirmedAt'
+	| 'heldUntil'
+>;
+
 export type ChargeKind =
 	| 'used'
 	| 'booked_not_checked_in'
@@ -163,6 +177,17 @@ export function monthIsOver(month: string, tz: string, now: Date): boolean {
 	return now >= monthBounds(month, tz).end;
 }
 
+/**
+ * The hours of a booking billed inside the bounds (a month, or a report's range). A no-show
+ * held the box only until its slot was freed; the rest may have gone to someone else.
+ */
+export function billedHoursIn(b: Billable, bounds: MonthBounds, charge = chargeOf(b)): number {
+	if (!charge.billable) return 0;
+	const end =
+		b.status === 'no_show' && b.heldUntil && b.heldUntil < b.endAt ? b.heldUntil : b.endAt;
+	return hoursInMonth(b.startAt, end, bounds);
+}
+
 /** Real elapsed hours of [startAt, endAt) inside the month's bounds. */
 export function hoursInMonth(startAt: Date, endAt: Date, bounds: MonthBounds): number {
 	const a = Math.max(startAt.getTime(), bounds.start.getTime());
@@ -192,7 +217,7 @@ function duration(minutes: number): string {
 	return h ? `${d} d ${h} h` : `${d} d`;
 }
 
-function userCancellation(b: UsageBooking): Charge {
+function userCancellation(b: Billable): Charge {
 	if (b.confirmedAt === null)
 		return {
 			kind: 'cancelled',
@@ -234,7 +259,7 @@ function userCancellation(b: UsageBooking): Charge {
 }
 
 /** How a booking is charged, and why, in words. */
-export function chargeOf(b: UsageBooking): Charge {
+export function chargeOf(b: Billable): Charge {
 	switch (b.status) {
 		case 'confirmed':
 		case 'completed':
@@ -321,11 +346,7 @@ export function statement(bookings: UsageBooking[], month: string, tz: string): 
 		const booked = hoursInMonth(b.startAt, b.endAt, bounds);
 		const used = usedHoursInMonth(b, bounds);
 		// A no-show held the box only until its slot was freed; the rest may have been resold.
-		const held =
-			b.status === 'no_show' && b.heldUntil && b.heldUntil < b.endAt
-				? hoursInMonth(b.startAt, b.heldUntil, bounds)
-				: booked;
-		const billed = charge.billable ? held : 0;
+		const billed = billedHoursIn(b, bounds, charge);
 		const amount = roundCents(billed * b.rate);
 		const box = boxes.get(b.boxId) ?? {
 			boxName: b.boxName,

@@ -113,7 +113,8 @@ export async function facilityReport(
 				status: bookings.status,
 				cancelCause: bookings.cancelCause,
 				cancelledAt: bookings.cancelledAt,
-				confirmedAt: bookings.confirmedAt
+				confirmedAt: bookings.confirmedAt,
+				heldUntil: bookings.blockedUntil
 			})
 			.from(bookings)
 			.where(
