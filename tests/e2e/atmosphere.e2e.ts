@@ -11,7 +11,19 @@ test('a manager imports a sensor log with a report, records a reading and sees t
 	await expect(page.getByRole('heading', { name: 'Atmosphere', exact: true })).toBeVisible();
 	// uPlot draws on a canvas once the week's readings are in.
 	await expect(page.getByTestId('atmosphere-chart').locator('canvas')).toBeVisible();
+	// The warn and alarm levels are drawn as their own lines, named in the legend.
+	const chart = page.getByTestId('atmosphere-chart');
+	for (const name of ['O₂ warn', 'O₂ alarm', 'H₂O warn', 'H₂O alarm'])
+		await expect(chart.getByText(name, { exact: true })).toBeVisible();
+	// Asking for 30 days asks the server for 30 days.
+	const thirty = page.waitForResponse((r) => {
+		const from = new URL(r.url()).searchParams.get('from');
+		return (
+			r.url().includes('/readings?') && !!from && Date.now() - Date.parse(from) > 29 * 86_400_000
+		);
+	});
 	await page.getByRole('button', { name: '30 days' }).click();
+	expect((await thirty).status()).toBe(200);
 	await expect(page.getByRole('button', { name: '30 days' })).toHaveAttribute(
 		'aria-pressed',
 		'true'

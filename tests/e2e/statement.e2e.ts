@@ -1,11 +1,47 @@
 import { expect, test } from '@playwright/test';
 import { readFileSync } from 'node:fs';
 import { DateTime } from 'luxon';
+import { eq } from 'drizzle-orm';
+import { bookings, boxes, researchGroups } from '../../src/lib/server/db/schema';
+import { closeTestDb, testDb, userIdByEmail } from '../support/db';
 import { open, signIn } from './support';
 
 const tz = process.env.FACILITY_TZ ?? 'Europe/Berlin';
 
 test('a PI opens the group’s statement for last month and downloads the CSV', async ({ page }) => {
+	// A booking of the member's on the 10th of last month, so the statement has a line of its
+	// own whatever day of the month the test runs (the demo's bookings span only ±14 days).
+	const db = testDb();
+	const [group] = await db
+		.select({ id: researchGroups.id })
+		.from(researchGroups)
+		.where(eq(researchGroups.name, 'Organometallic Synthesis'));
+	const [kestrel] = await db
+		.select({ id: boxes.id, rate: boxes.rateInternal })
+		.from(boxes)
+		.where(eq(boxes.name, 'Kestrel'));
+	const start = DateTime.now()
+		.setZone(tz)
+		.startOf('month')
+		.minus({ months: 1 })
+		.set({ day: 10, hour: 9 });
+	const purpose = `Statement line ${Date.now().toString(36)}`;
+	const [made] = await db
+		.insert(bookings)
+		.values({
+			boxId: kestrel.id,
+			userId: await userIdByEmail('member@example.org'),
+			groupId: group.id,
+			startAt: start.toJSDate(),
+			endAt: start.plus({ hours: 2 }).toJSDate(),
+			blockedUntil: start.plus({ hours: 2 }).toJSDate(),
+			purpose,
+			status: 'completed',
+			confirmedAt: start.minus({ days: 3 }).toJSDate()
+		})
+		.$returningId();
+	await closeTestDb();
+
 	await signIn(page, 'pi@example.org');
 	await page.getByRole('link', { name: 'Groups' }).click();
 	// A PI of one group lands on its page.
@@ -38,6 +74,13 @@ test('a PI opens the group’s statement for last month and downloads the CSV', 
 	const last = lines.at(-1)!.split(',');
 	expect(last[0]).toBe('total');
 	expect(last.at(-1)).toBe(total);
+	// One CSV line per row of the page's table, and the booking made above among them, billed.
+	expect(lines.length - 2).toBe(await page.locator('table.data-table tbody tr').count());
+	expect(Number(total)).toBeGreaterThan(0);
+	// 2 h at Kestrel's internal rate, not checked in: billed as booked.
+	const line = lines.find((l) => l.startsWith(`${made.id},Kestrel,`))!.split(',');
+	expect(line[5]).toBe('booked_not_checked_in');
+	expect(line.at(-1)).toBe((2 * kestrel.rate).toFixed(2));
 
 	// The month in progress has no statement yet: a clear refusal, not a page of zeros.
 	const thisMonth = DateTime.now().setZone(tz).toFormat('yyyy-MM');

@@ -130,6 +130,26 @@ describe('CSV import', () => {
 		expect(Math.max(...series.o2)).toBeCloseTo(0.9, 5);
 	}, 120_000);
 
+	it('thins a long range to each interval’s highest reading, inside the range asked for', async () => {
+		const boxId = await makeBox();
+		const manager = await signedIn(await makeUser('manager'));
+		// Three days a minute apart, flat at 0.3 ppm but for one 5 ppm reading in the middle.
+		const csv = sensorLog(3 * 1440, (i) => (i === 2000 ? 5 : 0.3));
+		expect((await postCsv(manager, boxId, csv)).status).toBe(201);
+		const to = new Date();
+		const from = new Date(to.getTime() - 30 * 86_400_000);
+		const q = new URLSearchParams({ from: from.toISOString(), to: to.toISOString() });
+		const series = await (await manager.get(`/api/boxes/${boxId}/readings?${q}`)).json();
+		// 30 days in at most 2,000 points: intervals of at least 30 · 86 400 / 2 000 s.
+		expect(series.bucketSeconds).toBeGreaterThanOrEqual(1296);
+		expect(Math.max(...series.o2)).toBe(5);
+		expect(Math.min(...series.o2)).toBe(0.3);
+		for (const t of series.t) {
+			expect(t * 1000).toBeGreaterThanOrEqual(from.getTime() - 1000);
+			expect(t * 1000).toBeLessThanOrEqual(to.getTime());
+		}
+	});
+
 	it('reports each rejected row and stores nothing unless told to skip them', async () => {
 		const boxId = await makeBox();
 		const manager = await signedIn(await makeUser('manager'));

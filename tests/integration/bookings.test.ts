@@ -338,13 +338,18 @@ describe('approval', () => {
 
 describe('GET /api/boxes and events', () => {
 	it('lists boxes with status and latest reading', async () => {
-		const { user } = await certifiedMemberAndBox();
-		const r = await (await signedIn(user)).get('/api/boxes');
+		const { user, boxId } = await certifiedMemberAndBox();
+		const client = await signedIn(user);
+		await client.post(`/api/boxes/${boxId}/readings`, { o2Ppm: 0.4, h2oPpm: 0.7 });
+		const r = await client.get('/api/boxes');
 		expect(r.status).toBe(200);
 		const { boxes } = await r.json();
 		expect(boxes.length).toBeGreaterThan(0);
 		expect(boxes[0]).toHaveProperty('condition');
 		expect(boxes[0]).toHaveProperty('latestReading');
+		const mine = boxes.find((b: { id: number }) => b.id === boxId);
+		expect(mine.condition).toBe('in_service');
+		expect(mine.latestReading).toMatchObject({ o2Ppm: 0.4, h2oPpm: 0.7 });
 	});
 
 	it('returns bookings, purge buffers and outages in the range; yours marked', async () => {

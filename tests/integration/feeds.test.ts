@@ -1,6 +1,7 @@
 import { afterAll, describe, expect, it } from 'vitest';
 import { eq } from 'drizzle-orm';
 import ICAL from 'ical.js';
+import { DateTime } from 'luxon';
 import { bookings, users } from '../../src/lib/server/db/schema';
 import { closeTestDb, makeBox, makeUser, testDb } from '../support/db';
 import { Client, baseUrl, errorOf, signedIn } from '../support/http';
@@ -43,13 +44,26 @@ function parse(text: string) {
 
 const feedPath = (url: string) => new URL(url).pathname;
 
+/** Midnight of the first day after today on which the zone's offset differs from today's. */
+function nextClockChange(zone: string) {
+	let day = DateTime.now().setZone(zone).startOf('day');
+	const offset = day.offset;
+	while (day.plus({ days: 1 }).startOf('day').offset === offset) day = day.plus({ days: 1 });
+	return day.plus({ days: 1 }).startOf('day');
+}
+
 describe('GET /ical/users/:token.ics', () => {
 	it('serves the person’s bookings in the facility zone, across a daylight-saving change', async () => {
 		const member = await makeUser('member');
 		const boxId = await makeBox({ name: `Feed box ${Date.now()}` });
-		// Berlin leaves CET for CEST on Sun 28 Mar 2027: 09:00 local is 08:00Z before, 07:00Z after.
-		const before = await book(member.id, boxId, '2027-03-26T08:00:00Z');
-		const after = await book(member.id, boxId, '2027-03-29T07:00:00Z');
+		// The next clock change in Berlin (always within the feed's year ahead): 09:00 local two
+		// days before it and the day after it are an hour apart in UTC.
+		const change = nextClockChange('Europe/Berlin');
+		const localBefore = change.minus({ days: 2 }).set({ hour: 9 });
+		const localAfter = change.plus({ days: 1 }).set({ hour: 9 });
+		expect(localBefore.offset).not.toBe(localAfter.offset);
+		const before = await book(member.id, boxId, localBefore.toUTC().toISO()!);
+		const after = await book(member.id, boxId, localAfter.toUTC().toISO()!);
 		const { userFeedUrl, token } = await tokenFor(member);
 		expect(token).toMatch(/^[A-Za-z0-9_-]{43}$/);
 
@@ -57,8 +71,12 @@ describe('GET /ical/users/:token.ics', () => {
 		expect(r.status).toBe(200);
 		expect(r.headers.get('content-type')).toBe('text/calendar; charset=utf-8');
 		const text = await r.text();
-		expect(text).toContain('DTSTART;TZID=Europe/Berlin:20270326T090000');
-		expect(text).toContain('DTSTART;TZID=Europe/Berlin:20270329T090000');
+		expect(text).toContain(
+			`DTSTART;TZID=Europe/Berlin:${localBefore.toFormat("yyyyMMdd'T'HHmmss")}`
+		);
+		expect(text).toContain(
+			`DTSTART;TZID=Europe/Berlin:${localAfter.toFormat("yyyyMMdd'T'HHmmss")}`
+		);
 		expect(text).toMatch(/^X-WR-CALNAME:Boxwright: my box time\r?$/m);
 		expect(text).toMatch(/^(REFRESH-INTERVAL|X-PUBLISHED-TTL)[;:].*PT15M/m);
 		expect(text).toContain('BEGIN:VTIMEZONE');
@@ -66,10 +84,10 @@ describe('GET /ical/users/:token.ics', () => {
 		const { events } = parse(text);
 		const byUid = new Map(events.map((e) => [e.uid, e]));
 		expect(byUid.get(`booking-${before}@boxwright`)!.startDate.toJSDate().toISOString()).toBe(
-			'2027-03-26T08:00:00.000Z'
+			localBefore.toUTC().toISO()
 		);
 		expect(byUid.get(`booking-${after}@boxwright`)!.startDate.toJSDate().toISOString()).toBe(
-			'2027-03-29T07:00:00.000Z'
+			localAfter.toUTC().toISO()
 		);
 		for (const e of events) {
 			expect(e.component.getFirstPropertyValue('dtstamp')).toBeTruthy();

@@ -1,6 +1,6 @@
 import { afterAll, describe, expect, it } from 'vitest';
 import { and, eq } from 'drizzle-orm';
-import { groupMemberships } from '../../src/lib/server/db/schema';
+import { groupMemberships, researchGroups } from '../../src/lib/server/db/schema';
 import { closeTestDb, makeGroup, makeUser, testDb } from '../support/db';
 import { signedIn } from '../support/http';
 
@@ -56,6 +56,15 @@ describe('groups', () => {
 			external: 'on'
 		});
 		expect(edited.status).toBe(200);
+		const [saved] = await testDb()
+			.select()
+			.from(researchGroups)
+			.where(eq(researchGroups.id, group.id));
+		expect(saved).toMatchObject({
+			name: `${group.name} renamed`,
+			costCentre: 'CC-9',
+			external: true
+		});
 		const blank = await manager.form(`/groups/${group.id}?/edit`, {
 			name: '',
 			costCentre: '',

@@ -226,6 +226,8 @@ describe('the outbox and the mail sink', () => {
 			).toBe(201);
 			const keys = ids.map((id) => `booking:${id}:cancelled:1`);
 			const rows = () => testDb().select().from(outbox).where(inArray(outbox.dedupeKey, keys));
+			// One message per cancelled booking, or the checks below would hold of nothing.
+			expect(await rows()).toHaveLength(6);
 
 			// The app's worker tries, the sink says 421: every row has failed at least once, has
 			// the error noted, and waits for its next try (none sent, none given up).
@@ -242,6 +244,7 @@ describe('the outbox and the mail sink', () => {
 			rmSync(pauseFile);
 			await until(async () => (await rows()).every((r) => r.status === 'sent'));
 			for (const r of await rows()) expect(sinkMessagesFor(r.id)).toHaveLength(1);
+			expect((await rows()).flatMap((r) => sinkMessagesFor(r.id))).toHaveLength(6);
 		} finally {
 			rmSync(pauseFile, { force: true });
 			worker.stopWorker();

@@ -4,7 +4,12 @@
 import { afterAll, describe, expect, it } from 'vitest';
 import { eq } from 'drizzle-orm';
 import { DateTime } from 'luxon';
-import { bookings, groupMemberships, notifications } from '../../src/lib/server/db/schema';
+import {
+	bookings,
+	groupMemberships,
+	notifications,
+	researchGroups
+} from '../../src/lib/server/db/schema';
 import { closeTestDb, makeBox, makeGroup, makeUser, testDb } from '../support/db';
 import { errorOf, signedIn } from '../support/http';
 import { until } from '../support/until';
@@ -189,6 +194,28 @@ describe('monthly statement', () => {
 		);
 		const future = await manager.form('/manage/statements?/close', { month: '2099-01' });
 		expect(future.status).toBe(422);
+	});
+
+	it('an external group is billed at the box’s external rate', async () => {
+		const group = await makeGroup('external');
+		await testDb()
+			.update(researchGroups)
+			.set({ external: true })
+			.where(eq(researchGroups.id, group.id));
+		const member = await makeUser('member', { group: group.id });
+		const boxId = await makeBox({ rateInternal: 10, rateExternal: 30 });
+		// 2 h on 9 Sep 2025 × 30.00 = 60.00 (the internal rate would give 20.00).
+		await book(boxId, member.id, group.id, {
+			startAt: z('2025-09-09T08:00:00Z'),
+			endAt: z('2025-09-09T10:00:00Z'),
+			status: 'completed'
+		});
+		const csv = await (
+			await (await signedIn(group.pi)).get(`/api/groups/${group.id}/statements/2025-09.csv`)
+		).text();
+		const lines = csv.trimEnd().split('\r\n');
+		expect(lines[1].split(',').slice(-2)).toEqual(['30.00', '60.00']);
+		expect(lines.at(-1)!.endsWith(',60.00')).toBe(true);
 	});
 
 	it('a rate below zero is refused with a field message', async () => {

@@ -159,6 +159,15 @@ describe('times and lengths', () => {
 		const ctx = context({ now: at('2026-03-25T08:00:00Z') });
 		const req = request({ start: at('2026-03-29T00:00:00Z'), end: at('2026-03-29T02:00:00Z') });
 		expect(codes(req, ctx)).toEqual([]);
+		// With a 150 min limit the 2 real hours fit; measured on the wall clock (3 h) they would not.
+		const short = context({
+			now: at('2026-03-25T08:00:00Z'),
+			box: { ...ctx.box, maxLengthMin: 150 }
+		});
+		expect(codes(req, short)).toEqual([]);
+		// And 3 real hours (01:00–05:00 on the wall clock) are refused under that limit.
+		const longer = request({ start: at('2026-03-29T00:00:00Z'), end: at('2026-03-29T03:00:00Z') });
+		expect(codes(longer, short)).toEqual(['too_long']);
 	});
 });
 
