@@ -71,7 +71,3 @@ export async function endSession(cookies: Cookies, sessionId: string | undefined
 export async function endOtherSessions(userId: number, keepSessionId: string) {
 	await db.delete(sessions).where(and(eq(sessions.userId, userId), ne(sessions.id, keepSessionId)));
 }
-
-export async function endAllSessions(userId: number) {
-	await lucia.invalidateUserSessions(userId);
-}

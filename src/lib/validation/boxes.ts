@@ -1,6 +1,7 @@
 import { z } from 'zod';
 import { chemicalClassKeys, gases } from '$lib/domain/boxes';
 import { LONGEST_BOOKING_MS, LONGEST_PURGE_MS } from '$lib/domain/bookings';
+import { MAX_RATE } from '$lib/domain/usage';
 
 const minutes = (label: string, min: number, max: number) =>
 	z.coerce
@@ -18,7 +19,7 @@ const ppm = (label: string) =>
 const rate = z.coerce
 	.number({ error: 'Enter an hourly rate.' })
 	.min(0, 'A rate cannot be below zero.')
-	.max(100_000, 'That rate is implausibly high.');
+	.max(MAX_RATE, 'That rate is implausibly high.');
 
 export const portSchema = z.object({
 	position: z.string().trim().min(1, 'Name the port’s position.').max(40),

@@ -114,7 +114,7 @@ export function bookingNoShow(booking: IcsBooking, person: Person, graceMin: num
 		text: lines.join('\n'),
 		html: html(lines.map(escape)),
 		icsMethod: 'CANCEL',
-		ics: bookingInvite({ ...booking, sequence: booking.sequence }, 'CANCEL')
+		ics: bookingInvite(booking, 'CANCEL')
 	};
 }
 

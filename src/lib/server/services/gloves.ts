@@ -26,6 +26,7 @@ import {
 } from '../db/schema';
 import type { Actor } from './accounts';
 import { audit } from './audit';
+import { notifyManagers } from './notifications';
 import { forbidden, notFound, ServiceError } from './errors';
 import { closeOutage, openOutage } from './outages';
 import { missingProof } from './leak-tests';
@@ -98,9 +99,37 @@ export type DamageReport = {
 };
 
 /** Any member may report damage; the answer says whether it is catastrophic. */
-export async function reportDamage(actor: Actor, input: DamageReport, now = new Date()) {
+/** A box's port and the glove fitted on it (or null), or a 404 when the port is not the box's. */
+export async function portAndGlove(boxId: number, portId: number) {
+	const [port] = await db
+		.select({ id: boxPorts.id, position: boxPorts.position, boxName: boxes.name, boxId: boxes.id })
+		.from(boxPorts)
+		.innerJoin(boxes, eq(boxes.id, boxPorts.boxId))
+		.where(and(eq(boxPorts.id, portId), eq(boxPorts.boxId, boxId)));
+	if (!port) throw notFound('That port');
+	const [glove] = await db
+		.select()
+		.from(gloves)
+		.where(and(eq(gloves.portId, portId), isNull(gloves.removedAt)));
+	return { port, glove: glove ?? null };
+}
+
+/**
+ * Records damage to a fitted glove. A catastrophic hole tells the managers in the same
+ * transaction, so the notice exists exactly when the report does.
+ */
+export async function reportDamage(
+	actor: Actor & { name: string },
+	input: DamageReport,
+	now = new Date()
+) {
 	const [glove] = await db.select().from(gloves).where(eq(gloves.id, input.gloveId));
 	if (!glove || glove.removedAt) throw notFound('The glove');
+	const [port] = await db
+		.select({ position: boxPorts.position, boxId: boxes.id, boxName: boxes.name })
+		.from(boxPorts)
+		.innerJoin(boxes, eq(boxes.id, boxPorts.boxId))
+		.where(eq(boxPorts.id, glove.portId));
 	const catastrophic = isCatastrophic(input.holeSizeMm);
 	const [created] = await transaction(async (tx) => {
 		const row = await tx
@@ -125,6 +154,15 @@ export async function reportDamage(actor: Actor, input: DamageReport, now = new 
 			entityId: glove.id,
 			details: { ...input, catastrophic }
 		});
+		if (catastrophic && port) {
+			await notifyManagers(
+				`Glove failure on ${port.boxName}, ${port.position}`,
+				`${actor.name} reported a ${input.holeSizeMm} mm hole (${input.location.replace('_', ' ')}). Take the box out of service.`,
+				`/boxes/${port.boxId}`,
+				`glove-damage:${row[0].id}`,
+				tx
+			);
+		}
 		return row;
 	});
 	return { inspectionId: created.id, catastrophic, portId: glove.portId };

@@ -3,6 +3,7 @@ import { and, asc, desc, eq, isNull, lte, ne, or } from 'drizzle-orm';
 import { hasRole } from '$lib/domain/roles';
 import { formatDateTime } from '$lib/domain/time';
 import {
+	DUE_SOON_DAYS,
 	dueState,
 	maintenanceKindLabel,
 	nextDueAt,
@@ -252,7 +253,7 @@ export async function tasksOf(boxId: number, now = new Date()) {
 
 /** Tasks of every box that are overdue, due, or due within the week: the manager's list. */
 export async function dueTasks(now = new Date()) {
-	const horizon = new Date(now.getTime() + 7 * 86_400_000);
+	const horizon = new Date(now.getTime() + DUE_SOON_DAYS * 86_400_000);
 	const rows = await db
 		.select(taskColumns)
 		.from(maintenanceTasks)

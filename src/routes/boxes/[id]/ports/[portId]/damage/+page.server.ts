@@ -1,15 +1,11 @@
 import { error, fail, redirect } from '@sveltejs/kit';
-import { and, eq, isNull } from 'drizzle-orm';
 import { z } from 'zod';
 import { damageLocations } from '$lib/domain/gloves';
-import { db } from '$lib/server/db';
-import { boxes, boxPorts, gloves } from '$lib/server/db/schema';
 import { requireRole, requireUser } from '$lib/server/guard';
 import { idParam } from '$lib/server/params';
 import { attempt } from '$lib/server/services/errors';
-import { reportDamage, startGloveChange } from '$lib/server/services/gloves';
-import { notifyManagers } from '$lib/server/services/notifications';
-import { checkPhoto, put } from '$lib/server/storage';
+import { portAndGlove, reportDamage, startGloveChange } from '$lib/server/services/gloves';
+import { checkPhoto, put, remove } from '$lib/server/storage';
 import { fieldErrors } from '$lib/validation/fields';
 import type { Actions, PageServerLoad } from './$types';
 
@@ -23,32 +19,22 @@ const reportSchema = z.object({
 	notes: z.string().trim().max(1000).optional()
 });
 
-async function portAndGlove(boxId: number, portId: number) {
-	const [port] = await db
-		.select({ id: boxPorts.id, position: boxPorts.position, boxName: boxes.name, boxId: boxes.id })
-		.from(boxPorts)
-		.innerJoin(boxes, eq(boxes.id, boxPorts.boxId))
-		.where(and(eq(boxPorts.id, portId), eq(boxPorts.boxId, boxId)));
-	if (!port) error(404, { message: 'That port was not found.', code: 'not_found' });
-	const [glove] = await db
-		.select()
-		.from(gloves)
-		.where(and(eq(gloves.portId, portId), isNull(gloves.removedAt)));
-	return { port, glove: glove ?? null };
+/** The port and its glove, or the page's 404. */
+async function portOf(boxId: number, portId: number) {
+	const found = await attempt(() => portAndGlove(boxId, portId));
+	if (!found.ok) error(404, { message: 'That port was not found.', code: 'not_found' });
+	return found.value;
 }
 
 export const load: PageServerLoad = async (event) => {
 	requireUser(event);
-	return portAndGlove(
-		idParam(event.params.id, 'The box'),
-		idParam(event.params.portId, 'The port')
-	);
+	return portOf(idParam(event.params.id, 'The box'), idParam(event.params.portId, 'The port'));
 };
 
 export const actions: Actions = {
 	report: async (event) => {
 		const user = requireUser(event);
-		const { port, glove } = await portAndGlove(
+		const { glove } = await portOf(
 			idParam(event.params.id, 'The box'),
 			idParam(event.params.portId, 'The port')
 		);
@@ -73,15 +59,10 @@ export const actions: Actions = {
 		const result = await attempt(() =>
 			reportDamage(user, { gloveId: glove.id, ...parsed.data, photoKey })
 		);
-		if (!result.ok)
+		if (!result.ok) {
+			// Nothing points at the photo without its report.
+			if (photoKey) await remove(photoKey).catch(() => undefined);
 			return fail(result.error.status, { values, errors: {}, message: result.error.message });
-		if (result.value.catastrophic) {
-			await notifyManagers(
-				`Glove failure on ${port.boxName}, ${port.position}`,
-				`${user.name} reported a ${parsed.data.holeSizeMm} mm hole (${parsed.data.location.replace('_', ' ')}). Take the box out of service.`,
-				`/boxes/${port.boxId}`,
-				`glove-damage:${result.value.inspectionId}`
-			);
 		}
 		return {
 			reported: true,
