@@ -16,9 +16,10 @@ import { db, type Transaction } from '../db';
 import { atmosphereReadings, boxes } from '../db/schema';
 import type { Actor } from './accounts';
 import { audit } from './audit';
-import { isDuplicateKey, notFound, ServiceError } from './errors';
+import { isDuplicateKey, ServiceError } from './errors';
 import { notifyManagers } from './notifications';
 import { transaction } from '../db/transaction';
+import { lockBox } from '../db/locks';
 
 type Source = 'manual' | 'check_in' | 'check_out' | 'csv';
 
@@ -37,24 +38,6 @@ const FUTURE_SLACK_MS = 5 * 60_000;
 const BATCH = 5_000;
 
 type LockedBox = Thresholds & { id: number; name: string; atmosphereState: AtmosphereState };
-
-async function lockBox(tx: Transaction, boxId: number): Promise<LockedBox> {
-	const [box] = await tx
-		.select({
-			id: boxes.id,
-			name: boxes.name,
-			atmosphereState: boxes.atmosphereState,
-			o2WarnPpm: boxes.o2WarnPpm,
-			o2AlarmPpm: boxes.o2AlarmPpm,
-			h2oWarnPpm: boxes.h2oWarnPpm,
-			h2oAlarmPpm: boxes.h2oAlarmPpm
-		})
-		.from(boxes)
-		.where(eq(boxes.id, boxId))
-		.for('update');
-	if (!box) throw notFound('The box');
-	return box;
-}
 
 /**
  * Moves the box to the state its newest reading calls for; tells the managers when it goes

@@ -20,6 +20,7 @@ import { audit } from './audit';
 import { resettle } from './atmosphere';
 import { isDuplicateKey, notFound, ServiceError } from './errors';
 import { transaction } from '../db/transaction';
+import { lockBox } from '../db/locks';
 
 export type BoxSummary = {
 	id: number;
@@ -232,12 +233,7 @@ export async function createBox(actor: Actor, input: BoxInput): Promise<number> 
 export async function updateBox(actor: Actor, id: number, input: BoxInput): Promise<void> {
 	try {
 		await transaction(async (tx) => {
-			const [existing] = await tx
-				.select({ id: boxes.id })
-				.from(boxes)
-				.where(eq(boxes.id, id))
-				.for('update');
-			if (!existing) throw notFound('The box');
+			await lockBox(tx, id);
 			await tx.update(boxes).set(columns(input)).where(eq(boxes.id, id));
 			await writeParts(tx, id, input);
 			await audit(tx, { actorId: actor.id, action: 'box.updated', entity: 'box', entityId: id });

@@ -1,6 +1,6 @@
 // What each role's dashboard needs beyond the member's own bookings and certifications.
 import { and, asc, count, eq, inArray, isNull } from 'drizzle-orm';
-import { EXPIRY_WARNING_DAYS } from './training';
+import { EXPIRY_WARNING_DAYS, standingByPersonAndModule } from '$lib/domain/certifications';
 import { db } from '../db';
 import {
 	certifications,
@@ -27,7 +27,9 @@ export async function trainingNeeds(trainerId: number, now = new Date()) {
 				.select({
 					userId: users.id,
 					name: users.name,
+					moduleId: certifications.moduleId,
 					moduleName: trainingModules.name,
+					grantedAt: certifications.grantedAt,
 					expiresAt: certifications.expiresAt,
 					revokedAt: certifications.revokedAt
 				})
@@ -45,13 +47,8 @@ export async function trainingNeeds(trainerId: number, now = new Date()) {
 				)
 				.orderBy(asc(certifications.expiresAt))
 		: [];
-	// Only the newest certification of a person in a module counts.
-	const newest = new Map<string, (typeof lapsing)[number]>();
-	for (const c of lapsing) {
-		const key = `${c.userId}:${c.moduleName}`;
-		const seen = newest.get(key);
-		if (!seen || seen.expiresAt < c.expiresAt) newest.set(key, c);
-	}
+	// Where each person stands in each module: an older live grant outranks a newer revoked one.
+	const newest = standingByPersonAndModule(lapsing, now);
 	const renewals = [...newest.values()]
 		.filter((c) => !c.revokedAt && c.expiresAt < soon)
 		.map((c) => ({

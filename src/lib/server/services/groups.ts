@@ -14,7 +14,7 @@ import {
 import type { Actor } from './accounts';
 import { audit } from './audit';
 import { forbidden, isDuplicateKey, notFound, ServiceError } from './errors';
-import { certificationState } from './training';
+import { certificationState, standingByPersonAndModule } from '$lib/domain/certifications';
 import { transaction } from '../db/transaction';
 
 /** Group names for the registration form (no PI or cost centre: that page is public). */
@@ -94,18 +94,17 @@ export async function membersOf(groupId: number, now = new Date()) {
 				.where(inArray(certifications.userId, ids))
 				.orderBy(desc(certifications.grantedAt))
 		: [];
-	return members.map((m) => {
-		// The newest certification per module says where the member stands.
-		const seen = new Set<number>();
-		const held = certs
-			.filter((c) => c.userId === m.userId && !seen.has(c.moduleId) && seen.add(c.moduleId))
+	const byKey = standingByPersonAndModule(certs, now);
+	return members.map((m) => ({
+		...m,
+		certifications: [...byKey.values()]
+			.filter((c) => c.userId === m.userId)
 			.map((c) => ({
 				moduleName: c.moduleName,
 				expiresAt: c.expiresAt,
 				state: certificationState(c, now)
-			}));
-		return { ...m, certifications: held };
-	});
+			}))
+	}));
 }
 
 /** The group's bookings from `from` to `to`, newest first. */

@@ -3,7 +3,7 @@ import { LONGEST_BOOKING_MS } from '$lib/domain/bookings';
 import type { OutageKind } from '$lib/domain/bookings';
 import { hasRole } from '$lib/domain/roles';
 import type { Transaction } from '../db';
-import { bookings, boxes, outages, users } from '../db/schema';
+import { bookings, outages, users } from '../db/schema';
 import { bookingCancelled } from '../mail/messages';
 import { enqueueMany, type Outgoing } from '../mail/outbox';
 import type { Actor } from './accounts';
@@ -11,6 +11,7 @@ import { audit } from './audit';
 import { alternativeFinder } from './alternatives';
 import { forbidden, notFound, ServiceError } from './errors';
 import { transaction } from '../db/transaction';
+import { lockBox } from '../db/locks';
 
 export type OutageInput = { start: Date; end: Date; kind: OutageKind; reason: string };
 
@@ -93,16 +94,6 @@ async function cancelOverlapping(
 	});
 	await enqueueMany(tx, outgoing);
 	return ids;
-}
-
-async function lockBox(tx: Transaction, boxId: number) {
-	const [box] = await tx
-		.select({ id: boxes.id, name: boxes.name, room: boxes.room })
-		.from(boxes)
-		.where(eq(boxes.id, boxId))
-		.for('update');
-	if (!box) throw notFound('The box');
-	return box;
 }
 
 /** Takes a box out of service; every overlapping booking is cancelled and its holder told. */

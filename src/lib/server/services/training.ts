@@ -1,6 +1,13 @@
 import { and, asc, desc, eq, inArray, isNull } from 'drizzle-orm';
 import { DateTime } from 'luxon';
 import { hasRole } from '$lib/domain/roles';
+import {
+	certificationState,
+	EXPIRY_WARNING_DAYS,
+	standing,
+	standingByPersonAndModule,
+	type CertificationState
+} from '$lib/domain/certifications';
 import { config } from '../config';
 import { db } from '../db';
 import {
@@ -17,22 +24,7 @@ import { audit } from './audit';
 import { forbidden, isDuplicateKey, notFound, ServiceError } from './errors';
 import { transaction } from '../db/transaction';
 
-export type CertificationState = 'current' | 'expiring' | 'expired' | 'revoked' | 'none';
-
-/** Within this many days of expiry a certification shows as expiring. */
-export const EXPIRY_WARNING_DAYS = 30;
-
-export function certificationState(
-	cert: { expiresAt: Date; revokedAt: Date | null } | undefined,
-	now = new Date()
-): CertificationState {
-	if (!cert) return 'none';
-	if (cert.revokedAt) return 'revoked';
-	if (cert.expiresAt <= now) return 'expired';
-	if (cert.expiresAt.getTime() - now.getTime() < EXPIRY_WARNING_DAYS * 86_400_000)
-		return 'expiring';
-	return 'current';
-}
+export { certificationState, EXPIRY_WARNING_DAYS, type CertificationState };
 
 export async function listModules() {
 	const [modules, prereqs, trainers] = await Promise.all([
@@ -87,8 +79,10 @@ export async function certificationsOf(userId: number, now = new Date()) {
 		db.select({ id: boxes.id, name: boxes.name }).from(boxes).orderBy(asc(boxes.name))
 	]);
 	const latest = (moduleId: number) =>
-		certs.find((c) => c.moduleId === moduleId && !c.revokedAt && c.expiresAt > now) ??
-		certs.find((c) => c.moduleId === moduleId);
+		standing(
+			certs.filter((c) => c.moduleId === moduleId),
+			now
+		);
 	const holds = (moduleId: number) => {
 		const s = certificationState(latest(moduleId), now);
 		return s === 'current' || s === 'expiring';
@@ -276,14 +270,7 @@ export async function certificationMatrix(now = new Date()) {
 			.from(certifications)
 			.orderBy(desc(certifications.grantedAt), desc(certifications.id))
 	]);
-	const byKey = new Map<string, (typeof certs)[number]>();
-	for (const c of certs) {
-		const key = `${c.userId}:${c.moduleId}`;
-		const held = byKey.get(key);
-		// Prefer a live grant over a newer revoked or expired one.
-		const live = (x: typeof c) => !x.revokedAt && x.expiresAt > now;
-		if (!held || (!live(held) && live(c))) byKey.set(key, c);
-	}
+	const byKey = standingByPersonAndModule(certs, now);
 	return {
 		modules,
 		rows: people.map((p) => ({
