@@ -64,19 +64,6 @@ export function handWarning(
 	return `This port is on the ${portHand}, but the glove as fitted is a ${worn}-hand glove${turnedInsideOut ? ' (turned inside out)' : ''}.`;
 }
 
-/** The steps of a glove change, in order. `flush_cycle` is done once per cycle. */
-export const gloveChangeSteps = [
-	{ key: 'port_sealed', label: 'Port sealed with the port cover and the seal checked' },
-	{ key: 'orings_off', label: 'O-rings off' },
-	{ key: 'old_glove_removed', label: 'Old glove removed and bagged' },
-	{ key: 'new_glove_fitted', label: 'New glove fitted (material, size, thickness, hand)' },
-	{ key: 'flush_cycle', label: 'Air squeezed out, glove refilled with box gas (one cycle)' },
-	{ key: 'orings_on', label: 'O-rings back on' },
-	{ key: 'purge_started', label: 'Purge started' },
-	{ key: 'cover_removed', label: 'Port cover removed' }
-] as const;
-export type GloveChangeStepKey = (typeof gloveChangeSteps)[number]['key'];
-
 /**
  * Whether a fitted glove stands damaged: a damage report stands until one says the glove
  * was replaced (or a new glove is fitted, which starts a new history).

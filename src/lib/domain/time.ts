@@ -14,6 +14,12 @@ export function fromLocal(date: string, time: string, tz: string): Date | null {
 	return dt.toJSDate();
 }
 
+/** The date (YYYY-MM-DD) and time (HH:mm) an instant shows on the facility's clock: fromLocal's inverse. */
+export function toLocalParts(at: Date, tz: string): { date: string; time: string } {
+	const l = local(at, tz);
+	return { date: l.toISODate()!, time: l.toFormat('HH:mm') };
+}
+
 /** ISO 8601 with the facility zone's offset, e.g. 2026-12-01T09:00:00.000+01:00. */
 export function isoInZone(at: Date, tz: string): string {
 	return local(at, tz).toISO()!;

@@ -38,7 +38,8 @@ export const actions: Actions = {
 	rebook: async (event) => {
 		const user = requireUser(event);
 		const form = await event.request.formData();
-		const original = await getBooking(formId(form.get('fromBookingId')));
+		const found = await attempt(() => getBooking(user, formId(form.get('fromBookingId'))));
+		const original = found.ok ? found.value : null;
 		if (!original || original.userId !== user.id)
 			return fail(404, { message: 'That booking was not found.' });
 		const start = new Date(String(form.get('start')));

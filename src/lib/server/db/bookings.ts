@@ -1,4 +1,5 @@
 import {
+	type AnyMySqlColumn,
 	boolean,
 	datetime,
 	index,
@@ -38,6 +39,8 @@ export const bookings = mysqlTable(
 		cancelCause: mysqlEnum(cancelCauses),
 		cancelledAt: datetime({ mode: 'date' }),
 		cancelledBy: int(),
+		/** The outage that cancelled it, set in the same transaction as the cancellation. */
+		outageId: int().references((): AnyMySqlColumn => outages.id, { onDelete: 'set null' }),
 		decidedBy: int(),
 		decidedAt: datetime({ mode: 'date' }),
 		/** When it was confirmed (at once, or on approval); null while it waited for approval. */
@@ -60,7 +63,8 @@ export const bookings = mysqlTable(
 		index('bookings_user_start_idx').on(t.userId, t.startAt),
 		index('bookings_group_start_idx').on(t.groupId, t.startAt),
 		// Pending counts on every manager's page, and the no-show sweep.
-		index('bookings_status_start_idx').on(t.status, t.startAt)
+		index('bookings_status_start_idx').on(t.status, t.startAt),
+		index('bookings_outage_idx').on(t.outageId)
 	]
 );
 

@@ -39,6 +39,8 @@ export type PublicBooking = {
 	status: BookingStatus;
 	cancelReason: string | null;
 	cancelCause: string | null;
+	/** The outage that cancelled it, when one did. */
+	outageId: number | null;
 };
 
 type BookingView = Pick<
@@ -55,6 +57,7 @@ type BookingView = Pick<
 	| 'status'
 	| 'cancelReason'
 	| 'cancelCause'
+	| 'outageId'
 >;
 
 export function toPublic(b: BookingView, tz = config.facilityTz): PublicBooking {
@@ -70,8 +73,18 @@ export function toPublic(b: BookingView, tz = config.facilityTz): PublicBooking 
 		volatileSolvents: b.volatileSolvents,
 		status: b.status,
 		cancelReason: b.cancelReason,
-		cancelCause: b.cancelCause
+		cancelCause: b.cancelCause,
+		outageId: b.outageId
 	};
+}
+
+/** One booking, for its holder or a manager. */
+export async function getBooking(actor: Actor, id: number) {
+	const [booking] = await db.select().from(bookings).where(eq(bookings.id, id));
+	if (!booking) throw notFound('The booking');
+	if (booking.userId !== actor.id && !hasRole(actor.role, 'manager'))
+		throw forbidden('You can only see your own bookings.');
+	return booking;
 }
 
 /** The ISO weeks (facility zone) a span touches, as one UTC window. */
@@ -331,7 +344,7 @@ export async function createBooking(actor: Actor, input: BookingInput, now = new
 				box
 			);
 		}
-		return { id: created.id, ...values, cancelReason: null, cancelCause: null };
+		return { id: created.id, ...values, cancelReason: null, cancelCause: null, outageId: null };
 	});
 }
 
@@ -343,11 +356,6 @@ async function queueConfirmation(
 ) {
 	const message = bookingConfirmed({ ...b, boxName: box.name, room: box.room }, person);
 	await enqueue(tx, person, message, `booking:${b.id}:confirmed:${b.sequence}`);
-}
-
-export async function getBooking(id: number) {
-	const [row] = await db.select().from(bookings).where(eq(bookings.id, id));
-	return row ?? null;
 }
 
 /** Owner or manager cancels a pending or confirmed booking that has not ended. */

@@ -80,10 +80,12 @@ async function summarise(rows: Box[], now = new Date()): Promise<BoxSummary[]> {
 					.select({ id: gloves.id, portId: gloves.portId, installedAt: gloves.installedAt })
 					.from(gloves)
 					.where(and(inArray(gloves.portId, portIds), isNull(gloves.removedAt))),
+				// Newest first: a port whose latest change is open or abandoned stays sealed.
 				db
-					.select({ portId: gloveChanges.portId })
+					.select({ portId: gloveChanges.portId, status: gloveChanges.status })
 					.from(gloveChanges)
-					.where(and(inArray(gloveChanges.portId, portIds), isNull(gloveChanges.completedAt)))
+					.where(inArray(gloveChanges.portId, portIds))
+					.orderBy(desc(gloveChanges.id))
 			])
 		: [[], []];
 	// Damage reports of the fitted gloves; isDamaged decides, as on the box page and reports.
@@ -113,7 +115,8 @@ async function summarise(rows: Box[], now = new Date()): Promise<BoxSummary[]> {
 		return gloveState({
 			installedAt: glove?.installedAt ?? null,
 			damaged: glove ? damagedGloves.has(glove.id) : false,
-			changeUnderWay: openChanges.some((c) => c.portId === portId),
+			changeUnderWay:
+				(openChanges.find((c) => c.portId === portId)?.status ?? 'completed') !== 'completed',
 			now
 		});
 	};

@@ -139,36 +139,32 @@ export async function leakTestsOf(boxId: number, limit = 50) {
 }
 
 /**
- * For boxes that ask for it: what still keeps a glove change from ending, or null. The proof
- * is a passing leak test or a reading under both warn levels recorded after the port cover
- * came off (the step `cover_removed`): before that the new glove is not open to the box.
+ * A box's release check after a glove change: whether the box asks for one
+ * (`glove_change_needs_proof`) and whether it is met — a passing leak test or a reading
+ * under both warn levels recorded at or after `since` (the last flush cycle).
  */
-export async function missingProof(
+export async function releaseCheck(
 	q: Database | Transaction,
 	boxId: number,
-	steps: { key: string; at: string }[]
-): Promise<string | null> {
+	since: Date
+): Promise<{ needed: boolean; met: boolean }> {
 	const [box] = await q
 		.select({
-			name: boxes.name,
 			needsProof: boxes.gloveChangeNeedsProof,
 			o2WarnPpm: boxes.o2WarnPpm,
 			h2oWarnPpm: boxes.h2oWarnPpm
 		})
 		.from(boxes)
 		.where(eq(boxes.id, boxId));
-	if (!box?.needsProof) return null;
-	const opened = steps.filter((s) => s.key === 'cover_removed').at(-1);
-	if (!opened)
-		return `${box.name} needs a passing leak test or an in-spec reading after the port cover is off: log the cover's removal first.`;
+	if (!box?.needsProof) return { needed: false, met: true };
 	// To the second, as the tests and readings it is compared with are stored.
-	const since = new Date(Math.floor(new Date(opened.at).getTime() / 1000) * 1000);
+	const from = new Date(Math.floor(since.getTime() / 1000) * 1000);
 	const [[test], [reading]] = await Promise.all([
 		q
 			.select({ id: leakTests.id })
 			.from(leakTests)
 			.where(
-				and(eq(leakTests.boxId, boxId), eq(leakTests.passed, true), gte(leakTests.testedAt, since))
+				and(eq(leakTests.boxId, boxId), eq(leakTests.passed, true), gte(leakTests.testedAt, from))
 			)
 			.limit(1),
 		// In spec: under both warn levels (domain/atmosphere.ts, inSpec), asked of the database.
@@ -178,13 +174,12 @@ export async function missingProof(
 			.where(
 				and(
 					eq(atmosphereReadings.boxId, boxId),
-					gte(atmosphereReadings.at, since),
+					gte(atmosphereReadings.at, from),
 					lt(atmosphereReadings.o2Ppm, box.o2WarnPpm),
 					lt(atmosphereReadings.h2oPpm, box.h2oWarnPpm)
 				)
 			)
 			.limit(1)
 	]);
-	if (test || reading) return null;
-	return `${box.name} goes back into service after a glove change only once a passing leak test or a reading under both warn levels is recorded after the port cover came off.`;
+	return { needed: true, met: Boolean(test || reading) };
 }

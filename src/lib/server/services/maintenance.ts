@@ -11,7 +11,8 @@ import {
 	type MaintenanceKind
 } from '$lib/domain/upkeep';
 import { config } from '../config';
-import { db } from '../db';
+import { db, type Transaction } from '../db';
+import { lockBox } from '../db/locks';
 import { boxes, maintenanceLog, maintenanceTasks, outages, users } from '../db/schema';
 import type { Actor } from './accounts';
 import { audit } from './audit';
@@ -66,7 +67,7 @@ export async function createTask(actor: Actor, boxId: number, input: TaskInput, 
 	});
 }
 
-async function lockTask(tx: Parameters<Parameters<typeof db.transaction>[0]>[0], taskId: number) {
+async function lockTask(tx: Transaction, taskId: number) {
 	const [task] = await tx
 		.select()
 		.from(maintenanceTasks)
@@ -74,6 +75,17 @@ async function lockTask(tx: Parameters<Parameters<typeof db.transaction>[0]>[0],
 		.for('update');
 	if (!task) throw notFound('The maintenance task');
 	return task;
+}
+
+/** The box's row first, then the task's: the lock order of every write that touches a box. */
+async function lockBoxAndTask(tx: Transaction, taskId: number) {
+	const [row] = await tx
+		.select({ boxId: maintenanceTasks.boxId })
+		.from(maintenanceTasks)
+		.where(eq(maintenanceTasks.id, taskId));
+	if (!row) throw notFound('The maintenance task');
+	await lockBox(tx, row.boxId);
+	return lockTask(tx, taskId);
 }
 
 /** Changes a task's interval or title; the due date follows from the last time it was done. */
@@ -134,7 +146,7 @@ export async function completeTask(
 ) {
 	mustManage(actor);
 	return transaction(async (tx) => {
-		const task = await lockTask(tx, taskId);
+		const task = await lockBoxAndTask(tx, taskId);
 		if (!task.active) throw new ServiceError(409, 'This task is retired.');
 		let endedOutage = false;
 		let plannedAhead: Date | null = null;
@@ -181,7 +193,7 @@ export async function planOutage(
 ) {
 	mustManage(actor);
 	return transaction(async (tx) => {
-		const task = await lockTask(tx, taskId);
+		const task = await lockBoxAndTask(tx, taskId);
 		const length = minutes ?? task.outageMinutes;
 		if (!(length > 0))
 			throw new ServiceError(400, 'Give the outage a length in minutes.', {
@@ -203,7 +215,7 @@ export async function planOutage(
 		const { outageId, cancelledBookingIds } = await openOutage(
 			tx,
 			actor,
-			task.boxId,
+			await lockBox(tx, task.boxId),
 			{
 				start,
 				end,

@@ -1,9 +1,10 @@
-import { and, eq, gt, gte, inArray, lt, sql } from 'drizzle-orm';
+import { and, asc, eq, gt, gte, inArray, lt, sql } from 'drizzle-orm';
 import { LONGEST_BOOKING_MS } from '$lib/domain/bookings';
 import type { OutageKind } from '$lib/domain/bookings';
 import { hasRole } from '$lib/domain/roles';
-import type { Transaction } from '../db';
-import { bookings, outages, users } from '../db/schema';
+import { db, type Transaction } from '../db';
+import type { Database } from '../db/connect';
+import { bookings, boxes, gloveChanges, outages, outbox, users, type Box } from '../db/schema';
 import { bookingCancelled } from '../mail/messages';
 import { enqueueMany, type Outgoing } from '../mail/outbox';
 import type { Actor } from './accounts';
@@ -15,20 +16,23 @@ import { lockBox } from '../db/locks';
 
 export type OutageInput = { start: Date; end: Date; kind: OutageKind; reason: string };
 
+function mustManage(actor: Actor, message = 'Only a manager can take a box out of service.') {
+	if (!hasRole(actor.role, 'manager')) throw forbidden(message);
+}
+
 /**
- * Cancels every pending or confirmed booking on the box that overlaps [start, end), and
- * queues one e-mail and one in-app notice per booking, all in the caller's transaction.
+ * The pending or confirmed bookings on the box that overlap [start, end): ending after it
+ * starts and starting before it ends (a booking's purge buffer alone does not overlap).
+ * With `lock`, the rows read are locked for the caller's transaction.
  */
-async function cancelOverlapping(
-	tx: Transaction,
-	actor: Actor,
-	box: { id: number; name: string; room: string },
+async function overlapping(
+	q: Database | Transaction,
+	boxId: number,
 	start: Date,
 	end: Date,
-	reason: string,
-	now: Date
-): Promise<number[]> {
-	const hit = await tx
+	lock: boolean
+) {
+	const query = q
 		.select({
 			id: bookings.id,
 			startAt: bookings.startAt,
@@ -43,7 +47,7 @@ async function cancelOverlapping(
 		.innerJoin(users, eq(users.id, bookings.userId))
 		.where(
 			and(
-				eq(bookings.boxId, box.id),
+				eq(bookings.boxId, boxId),
 				inArray(bookings.status, ['pending', 'confirmed']),
 				// From a point on (box_id, start_at): only the rows read are locked.
 				gte(bookings.startAt, new Date(start.getTime() - LONGEST_BOOKING_MS)),
@@ -51,7 +55,39 @@ async function cancelOverlapping(
 				gt(bookings.endAt, start)
 			)
 		)
-		.for('update');
+		.orderBy(asc(bookings.startAt));
+	return lock ? query.for('update') : query;
+}
+
+/** What an outage over [start, end) would cancel, by person and time; changes nothing. */
+export async function previewOutage(
+	actor: Actor,
+	boxId: number,
+	window: { start: Date; end: Date }
+) {
+	mustManage(actor);
+	const [box] = await db.select({ id: boxes.id }).from(boxes).where(eq(boxes.id, boxId));
+	if (!box) throw notFound('The box');
+	const rows = await overlapping(db, boxId, window.start, window.end, false);
+	return rows.map((b) => ({ id: b.id, userName: b.name, start: b.startAt, end: b.endAt }));
+}
+
+/**
+ * Cancels every pending or confirmed booking on the (locked) box that overlaps [start,
+ * end), names the outage on each, and queues one e-mail and one in-app notice per booking,
+ * all in the caller's transaction.
+ */
+async function cancelOverlapping(
+	tx: Transaction,
+	actor: Actor,
+	box: Box,
+	outageId: number,
+	window: { start: Date; end: Date },
+	reason: string,
+	now: Date
+): Promise<number[]> {
+	if (window.end <= window.start) return [];
+	const hit = await overlapping(tx, box.id, window.start, window.end, true);
 	if (!hit.length) return [];
 	const ids = hit.map((b) => b.id);
 	await tx
@@ -62,6 +98,7 @@ async function cancelOverlapping(
 			cancelReason: reason,
 			cancelledAt: now,
 			cancelledBy: actor.id,
+			outageId,
 			sequence: sql`${bookings.sequence} + 1`
 		})
 		.where(inArray(bookings.id, ids));
@@ -88,13 +125,16 @@ async function cancelOverlapping(
 		return {
 			to: { id: b.userId, email: b.email },
 			message,
-			dedupeKey: `booking:${b.id}:cancelled:${sequence}`,
+			dedupeKey: cancellationKey(b.id, sequence),
 			inApp: { title: message.subject, body: `Reason: ${reason}`, link: '/bookings' }
 		};
 	});
 	await enqueueMany(tx, outgoing);
 	return ids;
 }
+
+const cancellationKey = (bookingId: number, sequence: number) =>
+	`booking:${bookingId}:cancelled:${sequence}`;
 
 /** Takes a box out of service; every overlapping booking is cancelled and its holder told. */
 export async function createOutage(
@@ -103,33 +143,35 @@ export async function createOutage(
 	input: OutageInput,
 	now = new Date()
 ) {
-	if (!hasRole(actor.role, 'manager'))
-		throw forbidden('Only a manager can take a box out of service.');
+	mustManage(actor);
 	if (input.end <= input.start) {
 		throw new ServiceError(400, 'The expected end must be after the start.', {
 			fields: { end: 'The expected end must be after the start.' }
 		});
 	}
 	return transaction(async (tx) => {
-		const { outageId, cancelledBookingIds } = await openOutage(tx, actor, boxId, input, now);
+		const box = await lockBox(tx, boxId);
+		const { outageId, cancelledBookingIds } = await openOutage(tx, actor, box, input, now);
 		const [outage] = await tx.select().from(outages).where(eq(outages.id, outageId));
 		return { outage, cancelledBookingIds };
 	});
 }
 
-/** The body of createOutage, for callers that open an outage inside their own transaction. */
+/**
+ * The body of createOutage, for callers that open an outage inside their own transaction.
+ * The caller holds the box's lock (`lockBox`), taken before anything else.
+ */
 export async function openOutage(
 	tx: Transaction,
 	actor: Actor,
-	boxId: number,
+	box: Box,
 	input: OutageInput,
 	now: Date
 ) {
-	const box = await lockBox(tx, boxId);
 	const [created] = await tx
 		.insert(outages)
 		.values({
-			boxId,
+			boxId: box.id,
 			startAt: input.start,
 			endAt: input.end,
 			kind: input.kind,
@@ -137,14 +179,12 @@ export async function openOutage(
 			createdBy: actor.id
 		})
 		.$returningId();
-	// Bookings ending after the outage starts and starting before it ends; a booking's
-	// purge buffer alone does not make it overlap.
 	const cancelledBookingIds = await cancelOverlapping(
 		tx,
 		actor,
 		box,
-		input.start,
-		input.end,
+		created.id,
+		input,
 		input.reason,
 		now
 	);
@@ -154,7 +194,7 @@ export async function openOutage(
 		entity: 'outage',
 		entityId: created.id,
 		details: {
-			boxId,
+			boxId: box.id,
 			kind: input.kind,
 			start: input.start.toISOString(),
 			end: input.end.toISOString(),
@@ -164,33 +204,99 @@ export async function openOutage(
 	return { outageId: created.id, cancelledBookingIds };
 }
 
+/**
+ * Locks the outage's box, then reads the outage: the box row first, as every write that
+ * changes a box's time or state takes it.
+ */
+export async function lockOutage(tx: Transaction, outageId: number) {
+	const [found] = await tx
+		.select({ boxId: outages.boxId })
+		.from(outages)
+		.where(eq(outages.id, outageId));
+	if (!found) throw notFound('The outage');
+	const box = await lockBox(tx, found.boxId);
+	const [outage] = await tx.select().from(outages).where(eq(outages.id, outageId));
+	return { box, outage };
+}
+
+/**
+ * Moves an outage's times (the caller holds the box lock). Whatever the new times cover
+ * that the old ones did not is cancelled; bookings already cancelled stay cancelled.
+ */
+export async function moveOutage(
+	tx: Transaction,
+	actor: Actor,
+	box: Box,
+	current: typeof outages.$inferSelect,
+	to: { start: Date; end: Date },
+	now: Date
+) {
+	if (to.end <= to.start) {
+		throw new ServiceError(400, 'The expected end must be after the start.', {
+			fields: { end: 'The expected end must be after the start.' }
+		});
+	}
+	await tx
+		.update(outages)
+		.set({ startAt: to.start, endAt: to.end, sequence: sql`${outages.sequence} + 1` })
+		.where(eq(outages.id, current.id));
+	const reason = current.reason;
+	const cancelledBookingIds = [
+		...(to.start < current.startAt
+			? await cancelOverlapping(
+					tx,
+					actor,
+					box,
+					current.id,
+					{ start: to.start, end: current.startAt < to.end ? current.startAt : to.end },
+					reason,
+					now
+				)
+			: []),
+		...(to.end > current.endAt
+			? await cancelOverlapping(
+					tx,
+					actor,
+					box,
+					current.id,
+					{ start: current.endAt > to.start ? current.endAt : to.start, end: to.end },
+					reason,
+					now
+				)
+			: [])
+	];
+	await audit(tx, {
+		actorId: actor.id,
+		action: 'outage.changed',
+		entity: 'outage',
+		entityId: current.id,
+		details: {
+			from: { start: current.startAt.toISOString(), end: current.endAt.toISOString() },
+			to: { start: to.start.toISOString(), end: to.end.toISOString() },
+			cancelledBookingIds
+		}
+	});
+	return cancelledBookingIds;
+}
+
 /** Moves the expected end. A later end cancels what the longer outage now overlaps. */
 export async function extendOutage(actor: Actor, outageId: number, end: Date, now = new Date()) {
-	if (!hasRole(actor.role, 'manager')) throw forbidden('Only a manager can change an outage.');
+	mustManage(actor, 'Only a manager can change an outage.');
 	return transaction(async (tx) => {
-		const [current] = await tx.select().from(outages).where(eq(outages.id, outageId)).for('update');
-		if (!current) throw notFound('The outage');
+		const { box, outage: current } = await lockOutage(tx, outageId);
 		if (end <= current.startAt) {
 			throw new ServiceError(400, 'The expected end must be after the start.', {
 				fields: { end: 'The expected end must be after the start.' }
 			});
 		}
-		const box = await lockBox(tx, current.boxId);
-		await tx
-			.update(outages)
-			.set({ endAt: end, sequence: sql`${outages.sequence} + 1` })
-			.where(eq(outages.id, outageId));
-		const cancelledBookingIds =
-			end > current.endAt
-				? await cancelOverlapping(tx, actor, box, current.endAt, end, current.reason, now)
-				: [];
-		await audit(tx, {
-			actorId: actor.id,
-			action: 'outage.changed',
-			entity: 'outage',
-			entityId: outageId,
-			details: { from: current.endAt.toISOString(), to: end.toISOString(), cancelledBookingIds }
-		});
+		const cancelledBookingIds = await moveOutage(
+			tx,
+			actor,
+			box,
+			current,
+			{ start: current.startAt, end },
+			now
+		);
 		const [outage] = await tx.select().from(outages).where(eq(outages.id, outageId));
 		return { outage, cancelledBookingIds };
 	});
@@ -198,14 +304,31 @@ export async function extendOutage(actor: Actor, outageId: number, end: Date, no
 
 /** Ends an outage now: the box is back in service. Cancelled bookings stay cancelled. */
 export async function endOutage(actor: Actor, outageId: number, now = new Date()) {
-	if (!hasRole(actor.role, 'manager')) throw forbidden('Only a manager can end an outage.');
-	await transaction((tx) => closeOutage(tx, actor, outageId, now));
+	mustManage(actor, 'Only a manager can end an outage.');
+	return transaction(async (tx) => {
+		await lockOutage(tx, outageId);
+		const [open] = await tx
+			.select({ id: gloveChanges.id })
+			.from(gloveChanges)
+			.where(and(eq(gloveChanges.outageId, outageId), eq(gloveChanges.status, 'open')));
+		if (open)
+			throw new ServiceError(
+				409,
+				'A glove change on this outage is still open: complete or abandon it first.',
+				{ changeId: open.id }
+			);
+		await closeOutage(tx, actor, outageId, now);
+		const [outage] = await tx.select().from(outages).where(eq(outages.id, outageId));
+		return outage;
+	});
 }
 
-/** Ends an outage inside the caller's transaction (a completed glove change does this). */
+/**
+ * Ends an outage inside the caller's transaction (a completed glove change, a finished
+ * maintenance task): it locks the box first (a no-op when the caller already holds it).
+ */
 export async function closeOutage(tx: Transaction, actor: Actor, outageId: number, now: Date) {
-	const [current] = await tx.select().from(outages).where(eq(outages.id, outageId)).for('update');
-	if (!current) throw notFound('The outage');
+	const { outage: current } = await lockOutage(tx, outageId);
 	if (current.endAt <= now) throw new ServiceError(409, 'This outage has already ended.');
 	const endAt = current.startAt > now ? current.startAt : now;
 	await tx
@@ -219,4 +342,55 @@ export async function closeOutage(tx: Transaction, actor: Actor, outageId: numbe
 		entityId: outageId,
 		details: { endAt: endAt.toISOString() }
 	});
+}
+
+/** The bookings an outage cancelled, by person and time, with their e-mail's delivery. */
+export async function cancelledBy(outageId: number) {
+	const rows = await db
+		.select({
+			id: bookings.id,
+			startAt: bookings.startAt,
+			endAt: bookings.endAt,
+			sequence: bookings.sequence,
+			userName: users.name,
+			email: users.email
+		})
+		.from(bookings)
+		.innerJoin(users, eq(users.id, bookings.userId))
+		.where(eq(bookings.outageId, outageId))
+		.orderBy(asc(bookings.startAt));
+	const keys = rows.map((b) => cancellationKey(b.id, b.sequence));
+	const messages = keys.length
+		? await db
+				.select({ key: outbox.dedupeKey, status: outbox.status, sentAt: outbox.sentAt })
+				.from(outbox)
+				.where(inArray(outbox.dedupeKey, keys))
+		: [];
+	return rows.map((b) => {
+		const message = messages.find((m) => m.key === cancellationKey(b.id, b.sequence));
+		return {
+			id: b.id,
+			startAt: b.startAt,
+			endAt: b.endAt,
+			userName: b.userName,
+			email: b.email,
+			delivery: message?.status ?? null,
+			sentAt: message?.sentAt ?? null
+		};
+	});
+}
+
+/** An outage with its box, the glove changes on it and the bookings it cancelled. */
+export async function outageDetail(outageId: number) {
+	const [row] = await db
+		.select({ outage: outages, boxName: boxes.name, gas: boxes.gas })
+		.from(outages)
+		.innerJoin(boxes, eq(boxes.id, outages.boxId))
+		.where(eq(outages.id, outageId));
+	if (!row) throw notFound('The outage');
+	const changes = await db
+		.select({ id: gloveChanges.id, status: gloveChanges.status, portId: gloveChanges.portId })
+		.from(gloveChanges)
+		.where(eq(gloveChanges.outageId, outageId));
+	return { ...row, changes, cancelled: await cancelledBy(outageId) };
 }

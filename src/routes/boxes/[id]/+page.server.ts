@@ -1,11 +1,11 @@
-import { error, fail, redirect } from '@sveltejs/kit';
+import { error, fail } from '@sveltejs/kit';
 import { DateTime } from 'luxon';
 import { outageKinds } from '$lib/domain/bookings';
 import { fromLocal } from '$lib/domain/time';
 import { config } from '$lib/server/config';
 import { requireRole, requireUser } from '$lib/server/guard';
 import { endOutage, extendOutage, createOutage } from '$lib/server/services/outages';
-import { gloveHistory, glovesOfBox, startGloveChange } from '$lib/server/services/gloves';
+import { gloveHistory, glovesOfBox } from '$lib/server/services/gloves';
 import { hasRole } from '$lib/domain/roles';
 import { idParam } from '$lib/server/params';
 import { boxOutages, getBox } from '$lib/server/services/boxes';
@@ -129,14 +129,6 @@ export const actions: Actions = {
 				message: result.error.message
 			});
 		return { form: 'outage', cancelled: result.value.cancelledBookingIds.length };
-	},
-	gloveChange: async (event) => {
-		const actor = requireRole(event, 'manager');
-		const portId = formId((await event.request.formData()).get('portId'));
-		const result = await attempt(() => startGloveChange(actor, portId));
-		if (!result.ok)
-			return fail(result.error.status, { form: 'glove', message: result.error.message });
-		redirect(303, `/manage/glove-changes/${result.value.changeId}`);
 	},
 	endOutage: async (event) => {
 		const actor = requireRole(event, 'manager');

@@ -2,8 +2,14 @@ import { json } from '@sveltejs/kit';
 import { serve } from '$lib/server/api';
 import { requireRole } from '$lib/server/guard';
 import { idParam } from '$lib/server/params';
-import { cancelBooking, toPublic } from '$lib/server/services/bookings';
+import { cancelBooking, getBooking, toPublic } from '$lib/server/services/bookings';
 import type { RequestHandler } from './$types';
+
+export const GET: RequestHandler = async (event) => {
+	const user = requireRole(event, 'member');
+	const id = idParam(event.params.id, 'The booking');
+	return json({ booking: toPublic(await serve(() => getBooking(user, id))) });
+};
 
 export const DELETE: RequestHandler = async (event) => {
 	const user = requireRole(event, 'member');

@@ -4,7 +4,8 @@ import { damageLocations } from '$lib/domain/gloves';
 import { requireRole, requireUser } from '$lib/server/guard';
 import { idParam } from '$lib/server/params';
 import { attempt } from '$lib/server/services/errors';
-import { portAndGlove, reportDamage, startGloveChange } from '$lib/server/services/gloves';
+import { startGloveChange } from '$lib/server/services/glove-changes';
+import { portAndGlove, reportDamage } from '$lib/server/services/gloves';
 import { checkPhoto, put, remove } from '$lib/server/storage';
 import { fieldErrors } from '$lib/validation/fields';
 import type { Actions, PageServerLoad } from './$types';
@@ -72,9 +73,10 @@ export const actions: Actions = {
 	},
 	outageNow: async (event) => {
 		const actor = requireRole(event, 'manager');
+		const boxId = idParam(event.params.id, 'The box');
 		const portId = idParam(event.params.portId, 'The port');
-		const result = await attempt(() => startGloveChange(actor, portId));
+		const result = await attempt(() => startGloveChange(actor, boxId, { portId }));
 		if (!result.ok) return fail(result.error.status, { message: result.error.message, errors: {} });
-		redirect(303, `/manage/glove-changes/${result.value.changeId}`);
+		redirect(303, `/manage/glove-changes/${result.value.id}`);
 	}
 };

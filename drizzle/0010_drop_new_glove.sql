@@ -1,0 +1,1 @@
+ALTER TABLE `glove_changes` DROP COLUMN `new_glove`;
