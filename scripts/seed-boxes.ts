@@ -12,6 +12,7 @@ import {
 	boxRequiredModules,
 	certifications,
 	gloves,
+	gloveStock,
 	leakTests,
 	maintenanceLog,
 	maintenanceTasks,
@@ -338,6 +339,28 @@ export async function seedBoxesAndBookings(
 			};
 		})
 	);
+
+	// Spare gloves on the shelf; the right-hand size 8 butyl is down to its minimum.
+	await db.insert(gloveStock).values([
+		{ material: 'butyl', size: '8', thicknessMm: 0.4, hand: 'left', quantity: 4, minQuantity: 2 },
+		{ material: 'butyl', size: '8', thicknessMm: 0.4, hand: 'right', quantity: 2, minQuantity: 2 },
+		{
+			material: 'butyl',
+			size: '9',
+			thicknessMm: 0.4,
+			hand: 'ambidextrous',
+			quantity: 3,
+			minQuantity: 1
+		},
+		{
+			material: 'neoprene',
+			size: '8.5',
+			thicknessMm: 0.5,
+			hand: 'left',
+			quantity: 1,
+			minQuantity: 1
+		}
+	]);
 
 	// Readings every 3 hours for two weeks; Tern drifts above its warn level today.
 	const readings: (typeof atmosphereReadings.$inferInsert)[] = [];

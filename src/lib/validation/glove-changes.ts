@@ -81,3 +81,24 @@ export function fromForm(form: FormData, booleans: string[] = []): Record<string
 	for (const key of booleans) if (form.has(key)) out[key] = form.get(key) === 'on';
 	return out;
 }
+
+const count = (what: string) =>
+	z.coerce
+		.number({ error: `Give ${what} as a whole number.` })
+		.int(`Give ${what} as a whole number.`)
+		.min(0, `${what[0].toUpperCase()}${what.slice(1)} cannot be negative.`)
+		.max(10_000, 'At most 10,000.');
+
+export const stockCountSchema = z.strictObject({
+	quantity: count('the number on the shelf'),
+	minQuantity: count('the minimum')
+});
+
+export const stockKindSchema = z.strictObject({
+	material: fittedGloveSchema.shape.material,
+	size: fittedGloveSchema.shape.size,
+	thicknessMm: fittedGloveSchema.shape.thicknessMm,
+	hand: fittedGloveSchema.shape.hand,
+	quantity: count('the number on the shelf'),
+	minQuantity: count('the minimum')
+});

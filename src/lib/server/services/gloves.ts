@@ -180,3 +180,33 @@ export async function gloveHistory(boxId: number) {
 			.map((i) => ({ ...i.inspection, byName: i.byName }))
 	}));
 }
+
+/** A port's page: the glove on it, that glove's inspections, and its latest change. */
+export async function portView(boxId: number, portId: number) {
+	const { port, glove } = await portAndGlove(boxId, portId);
+	const inspections = glove
+		? await db
+				.select({ inspection: gloveInspections, byName: users.name })
+				.from(gloveInspections)
+				.leftJoin(users, eq(users.id, gloveInspections.byUserId))
+				.where(eq(gloveInspections.gloveId, glove.id))
+				.orderBy(desc(gloveInspections.at))
+		: [];
+	const [lastChange] = await db
+		.select({ id: gloveChanges.id, status: gloveChanges.status })
+		.from(gloveChanges)
+		.where(eq(gloveChanges.portId, portId))
+		.orderBy(desc(gloveChanges.id))
+		.limit(1);
+	const history = inspections.map((i) => ({ ...i.inspection, byName: i.byName }));
+	return {
+		port,
+		glove,
+		inspections: history,
+		damaged: isDamaged(history),
+		catastrophic: history.some(
+			(i) => i.damaged && i.action !== 'replaced' && isCatastrophic(i.holeSizeMm ?? 0)
+		),
+		lastChange: lastChange ?? null
+	};
+}
