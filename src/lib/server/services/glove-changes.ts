@@ -247,7 +247,6 @@ export async function recordStep(
 	const [who] = await db.select({ name: users.name }).from(users).where(eq(users.id, actor.id));
 	await transaction(async (tx) => {
 		const { change } = await lockChange(tx, changeId);
-		mustBeOpen(change);
 		const entry: StepEntry = {
 			key: input.step,
 			at: now.toISOString(),
@@ -263,9 +262,9 @@ export async function recordStep(
 			const r = result.refusal;
 			if (r.code === 'step_out_of_order')
 				throw new ServiceError(409, r.message, { code: r.code, nextSteps: r.nextSteps });
-			throw new ServiceError(400, r.message, {
-				fields: { [r.code === 'glove_missing' ? 'glove' : 'skipReason']: r.message }
-			});
+			if (r.code === 'change_closed') throw new ServiceError(409, r.message, { code: r.code });
+			const field = r.code === 'glove_missing' ? 'glove' : 'skipReason';
+			throw new ServiceError(400, r.message, { fields: { [field]: r.message } });
 		}
 		if (entry.glove) await takeFromStock(tx, entry.glove, now);
 		await tx
