@@ -5,7 +5,7 @@ import { DateTime } from 'luxon';
 import { bookings, users } from '../../src/lib/server/db/schema';
 import { closeTestDb, makeBox, makeUser, testDb } from '../support/db';
 import { Client, baseUrl, errorOf, signedIn } from '../support/http';
-import { slot } from '../support/time';
+import { facilityTz, slot } from '../support/time';
 
 afterAll(closeTestDb);
 
@@ -207,5 +207,53 @@ describe('GET /ical/boxes/:boxId.ics', () => {
 		expect((await fetch(`${baseUrl}/ical/boxes/${boxId}.ics?token=wrong`)).status).toBe(404);
 		expect((await fetch(`${baseUrl}/ical/boxes/${boxId}.ics`)).status).toBe(404);
 		expect((await new Client().post('/api/me/feed-token')).status).toBe(401);
+	});
+});
+
+describe('feed timestamps', () => {
+	// RFC 5545 3.8.7.1-3.8.7.3: DTSTAMP, LAST-MODIFIED and CREATED are UTC date-times (a
+	// trailing Z), even in a feed whose events are written in the facility zone.
+	it('writes every DTSTAMP, LAST-MODIFIED and CREATED in UTC, in both kinds of feed', async () => {
+		const member = await makeUser('member');
+		const boxId = await makeBox();
+		const id = await book(member.id, boxId, slot(9, 10).start);
+		const manager = await signedIn(await makeUser('manager'));
+		expect(
+			(
+				await manager.post(`/api/boxes/${boxId}/outages`, {
+					...slot(10, 8, 120),
+					kind: 'sensor',
+					reason: 'Sensor calibration'
+				})
+			).status
+		).toBe(201);
+		const { userFeedUrl, token } = await tokenFor(member);
+		const [booking] = await testDb()
+			.select({ updatedAt: bookings.updatedAt })
+			.from(bookings)
+			.where(eq(bookings.id, id));
+		const stamp = DateTime.fromJSDate(booking.updatedAt, { zone: 'utc' }).toFormat(
+			"yyyyMMdd'T'HHmmss'Z'"
+		);
+
+		const feeds = await Promise.all([
+			fetch(baseUrl + feedPath(userFeedUrl)).then((r) => r.text()),
+			fetch(`${baseUrl}/ical/boxes/${boxId}.ics?token=${token}`).then((r) => r.text())
+		]);
+		for (const text of feeds) {
+			// Unfolded (RFC 5545 3.1), so a folded value is read whole.
+			const lines = text.replace(/\r\n[ \t]/g, '').split('\r\n');
+			const stamped = lines.filter((l) => /^(DTSTAMP|LAST-MODIFIED|CREATED)[;:]/.test(l));
+			const events = lines.filter((l) => l === 'BEGIN:VEVENT').length;
+			expect(events).toBeGreaterThan(0);
+			expect(lines.filter((l) => l.startsWith('DTSTAMP')).length).toBe(events);
+			for (const line of stamped) expect(line).toMatch(/^[A-Z-]+:\d{8}T\d{6}Z$/);
+			expect(lines).toContain(`DTSTAMP:${stamp}`);
+			expect(lines).toContain(`LAST-MODIFIED:${stamp}`);
+			// The events themselves stay on the facility's clock.
+			expect(text).toContain(`DTSTART;TZID=${facilityTz}:`);
+			expect(lines).toContain(`X-WR-TIMEZONE:${facilityTz}`);
+			expect(text).toContain('BEGIN:VTIMEZONE');
+		}
 	});
 });

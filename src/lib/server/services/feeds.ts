@@ -85,7 +85,14 @@ export function renderFeed(name: string, events: FeedEvent[], tz = config.facili
 		prodId: { company: 'Boxwright', product: 'Boxwright', language: 'EN' },
 		ttl: 15 * 60
 	});
-	calendar.timezone({ name: tz, generator: (zone) => tzlib_get_ical_block(zone)[0] });
+	// No calendar-wide zone: with one, ical-generator 10 writes DTSTAMP, CREATED and
+	// LAST-MODIFIED as local times without a Z, and RFC 5545 (3.8.7.1-3.8.7.3) wants them in
+	// UTC. Each event carries the zone instead (DTSTART/DTEND with TZID), and the generator
+	// still adds a VTIMEZONE for every zone the events use. X-WR-TIMEZONE is then ours to
+	// write (it lands after the events; clients read it anywhere); the non-standard
+	// TIMEZONE-ID goes.
+	calendar.timezone({ name: null, generator: (zone) => tzlib_get_ical_block(zone)[0] });
+	calendar.x('X-WR-TIMEZONE', tz);
 	for (const e of events) {
 		calendar.createEvent({
 			id: e.uid,
