@@ -6,6 +6,7 @@ import { existsSync, mkdirSync, readFileSync, statSync, writeFileSync, readdirSy
 import { tmpdir } from 'node:os';
 import { dirname, join, resolve } from 'node:path';
 import { fileURLToPath } from 'node:url';
+import { readEnvFile } from './env.mjs';
 
 export const root = resolve(dirname(fileURLToPath(import.meta.url)), '..', '..');
 
@@ -18,16 +19,9 @@ export function fail(message) {
 	process.exit(1);
 }
 
-/** Reads `.env` when present; variables already set win. */
+/** Reads `.env` when present (`util.parseEnv`, see env.mjs); variables already set win. */
 export function loadEnvFile() {
-	const file = join(root, '.env');
-	if (!existsSync(file)) return;
-	for (const line of readFileSync(file, 'utf8').split('\n')) {
-		const match = /^\s*([A-Z0-9_]+)\s*=\s*(.*?)\s*$/.exec(line);
-		if (!match || line.trimStart().startsWith('#')) continue;
-		const value = match[2].replace(/^(['"])(.*)\1$/, '$2');
-		if (process.env[match[1]] === undefined) process.env[match[1]] = value;
-	}
+	readEnvFile(join(root, '.env'));
 }
 
 export function dataDir() {
@@ -243,14 +237,7 @@ function newestMtime(path) {
 /** Builds the app unless build/ is newer than every source and config file. */
 export function ensureBuild() {
 	const built = join(root, 'build', 'index.js');
-	const inputs = [
-		'src',
-		'static',
-		'package-lock.json',
-		'svelte.config.js',
-		'vite.config.ts',
-		'tailwind.config.ts'
-	];
+	const inputs = ['src', 'static', 'package-lock.json', 'svelte.config.js', 'vite.config.ts'];
 	const newestInput = Math.max(...inputs.map((p) => newestMtime(join(root, p))));
 	if (existsSync(built) && statSync(built).mtimeMs > newestInput) {
 		log('build is up to date');

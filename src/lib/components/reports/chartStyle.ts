@@ -1,22 +1,28 @@
 // How the report charts tell their series apart: a colour and a fill pattern each, so a
 // series still reads in greyscale print or without colour vision. The legend draws the
 // same patterns in SVG.
+import { themeColour, type ThemeColour } from '$lib/theme';
+
 export type Pattern = 'solid' | 'hatch' | 'dots' | 'cross' | 'vertical' | 'horizontal';
 
 export type SeriesStyle = { colour: string; pattern: Pattern };
 
 const patterns: Pattern[] = ['solid', 'hatch', 'dots', 'cross', 'vertical', 'horizontal'];
 
-// ink-800, argon-600, nitrogen-600, watch-600, ink-400 (tailwind.config.ts).
-const colours = ['#242d3a', '#7657bd', '#218274', '#a76a06', '#7d8b9e'];
+// From the palette in src/app.css, read when a chart is drawn.
+const colours: ThemeColour[] = ['ink-800', 'argon-600', 'nitrogen-600', 'watch-600', 'ink-400'];
 
 /** The n-th series' style: patterns cycle first, then colours, so neighbours differ in both. */
 export function seriesStyle(i: number, colour?: string): SeriesStyle {
-	return { colour: colour ?? colours[i % colours.length], pattern: patterns[i % patterns.length] };
+	return {
+		colour: colour ?? themeColour(colours[i % colours.length]),
+		pattern: patterns[i % patterns.length]
+	};
 }
 
 /** The gas accent of a box: argon lavender-violet, nitrogen sea-teal. */
-export const gasColour = (gas: 'Ar' | 'N2') => (gas === 'Ar' ? '#7657bd' : '#218274');
+export const gasColour = (gas: 'Ar' | 'N2') =>
+	themeColour(gas === 'Ar' ? 'argon-600' : 'nitrogen-600');
 
 /** Strokes of one 8×8 tile of the pattern, as SVG path data (also drawn on the canvas). */
 export function tilePath(pattern: Pattern): string {
@@ -41,8 +47,11 @@ export function canvasFill(style: SeriesStyle): string | CanvasPattern {
 	tile.width = tile.height = 8;
 	const g = tile.getContext('2d');
 	if (!g) return style.colour;
-	g.fillStyle = `${style.colour}33`;
+	// A fifth of the colour for the tile's ground, whatever form the colour is written in.
+	g.fillStyle = style.colour;
+	g.globalAlpha = 0.2;
 	g.fillRect(0, 0, 8, 8);
+	g.globalAlpha = 1;
 	g.strokeStyle = style.colour;
 	g.fillStyle = style.colour;
 	g.lineWidth = 1.5;
