@@ -1,5 +1,6 @@
 // `npm test`: the set-up of `npm start` on a fresh `boxwright_test` database, then
-// svelte-check, vitest (unit + integration) and Playwright against the built app.
+// svelte-check and lint (Prettier + ESLint), vitest (unit + integration) and Playwright
+// against the built app.
 import { spawn } from 'node:child_process';
 import { existsSync, mkdirSync, readFileSync, rmSync } from 'node:fs';
 import { join } from 'node:path';
@@ -38,7 +39,10 @@ rmSync(results, { recursive: true, force: true });
 mkdirSync(results, { recursive: true });
 
 const failures = [];
-if (!filters.length && run('npm', ['run', '-s', 'check']) !== 0) failures.push('svelte-check');
+if (!filters.length) {
+	if (run('npm', ['run', '-s', 'check']) !== 0) failures.push('svelte-check');
+	if (run('npm', ['run', '-s', 'lint']) !== 0) failures.push('lint');
+}
 ensureBuild();
 
 rmSync(join(dataDir(), 'test-mail'), { recursive: true, force: true });
