@@ -7,7 +7,7 @@ import type { LayoutServerLoad } from './$types';
 
 export const load: LayoutServerLoad = async ({ locals }) => {
 	const user = locals.user;
-	if (!user) return { user: null, tz: config.facilityTz };
+	if (!user) return { user: null, tz: config.facilityTz, currency: config.facilityCurrency };
 	// Every page runs this: a handful of indexed counts, side by side.
 	const isManager = user.role === 'manager' || user.role === 'admin';
 	const [led, unread, checkPrompt, pendingBookings] = await Promise.all([
@@ -19,6 +19,7 @@ export const load: LayoutServerLoad = async ({ locals }) => {
 	const isPi = led.length > 0;
 	return {
 		tz: config.facilityTz,
+		currency: config.facilityCurrency,
 		user: { id: user.id, name: user.name, email: user.email, role: user.role, isPi },
 		unread,
 		checkPrompt,

@@ -5,6 +5,7 @@ import {
 	chargeOf,
 	checkRate,
 	hoursInMonth,
+	lineCents,
 	monthBounds,
 	monthIsOver,
 	noShowDue,
@@ -12,6 +13,7 @@ import {
 	roundCents,
 	statement,
 	statementCsv,
+	statementFromSnapshot,
 	type UsageBooking
 } from './usage';
 
@@ -21,6 +23,19 @@ import {
 
 const tz = 'Europe/Berlin';
 const at = (iso: string) => new Date(iso);
+
+/** Figures in units, as the hand-worked values below are written; the code keeps cents. */
+function units<T extends { amountCents: number; rateCents?: number }>({
+	amountCents,
+	rateCents,
+	...rest
+}: T) {
+	return {
+		...rest,
+		...(rateCents === undefined ? {} : { rate: rateCents / 100 }),
+		amount: amountCents / 100
+	};
+}
 
 function booking(overrides: Partial<UsageBooking> = {}): UsageBooking {
 	return {
@@ -35,7 +50,7 @@ function booking(overrides: Partial<UsageBooking> = {}): UsageBooking {
 		cancelledAt: null,
 		checkInAt: null,
 		checkOutAt: null,
-		rate: 12.5,
+		rateCents: 1250,
 		cancelWindowHours: 24,
 		...overrides
 	};
@@ -211,9 +226,9 @@ describe('how a booking is charged (facility policy, common practice)', () => {
 describe('October 2026 for an invented group, worked by hand (Berlin; summer time ends 25 Oct)', () => {
 	// Boxes and rates: Argon A 12.50/h (24 h window), Nitrogen B 8.40/h (48 h window),
 	// Argon C 7.35/h (24 h window). October runs 30 Sep 22:00Z – 31 Oct 23:00Z.
-	const argonA = { boxId: 1, boxName: 'Argon A', rate: 12.5, cancelWindowHours: 24 };
-	const nitrogenB = { boxId: 2, boxName: 'Nitrogen B', rate: 8.4, cancelWindowHours: 48 };
-	const argonC = { boxId: 3, boxName: 'Argon C', rate: 7.35, cancelWindowHours: 24 };
+	const argonA = { boxId: 1, boxName: 'Argon A', rateCents: 1250, cancelWindowHours: 24 };
+	const nitrogenB = { boxId: 2, boxName: 'Nitrogen B', rateCents: 840, cancelWindowHours: 48 };
+	const argonC = { boxId: 3, boxName: 'Argon C', rateCents: 735, cancelWindowHours: 24 };
 	const mira = { userName: 'Mira Okafor' };
 	const jonas = { userName: 'Jonas Weber' };
 
@@ -347,7 +362,14 @@ describe('October 2026 for an invented group, worked by hand (Berlin; summer tim
 	const october = statement(bookings, '2026-10', tz);
 	const pick = (id: number) => {
 		const l = october.lines.find((x) => x.bookingId === id)!;
-		return [l.kind, l.bookedHours, l.usedHours, l.billedHours, l.rate, l.amount];
+		return [
+			l.kind,
+			l.bookedHours,
+			l.usedHours,
+			l.billedHours,
+			l.rateCents / 100,
+			l.amountCents / 100
+		];
 	};
 
 	it('has one line per October booking, by start', () => {
@@ -382,7 +404,7 @@ describe('October 2026 for an invented group, worked by hand (Berlin; summer tim
 		// Billed: 3 + 2 + 1.5 + 4 + 1.5 + 2 = 14 h.
 		// Amount, from the rounded lines: 37.50 + 16.80 + 11.03 + 50.00 + 11.03 + 16.80 = 143.16
 		// (the exact products would give 143.15; the statement adds up as printed instead).
-		expect(october.totals).toEqual({
+		expect(units(october.totals)).toEqual({
 			bookedHours: 20.5,
 			usedHours: 7.58,
 			billedHours: 14,
@@ -394,7 +416,7 @@ describe('October 2026 for an invented group, worked by hand (Berlin; summer tim
 		// Argon A: 101, 104, 107, 110 → booked 3 + 2 + 4 + 1 = 10, used 6 h 05 min = 6.08,
 		// billed 7, 37.50 + 50.00 = 87.50. Argon C: 103, 109 → 3, 0, 3, 22.06.
 		// Nitrogen B: 102, 105, 106, 108 → 7.5, 1.5, 4, 33.60.
-		expect(october.byBox).toEqual([
+		expect(october.byBox.map(units)).toEqual([
 			{
 				boxId: 1,
 				boxName: 'Argon A',
@@ -417,10 +439,10 @@ describe('October 2026 for an invented group, worked by hand (Berlin; summer tim
 
 	it('bills November its own part of the booking across midnight', () => {
 		const november = statement(bookings, '2026-11', tz);
-		expect(november.lines.map((l) => [l.bookingId, l.bookedHours, l.usedHours, l.amount])).toEqual([
-			[108, 2, 1.5, 16.8]
-		]);
-		expect(november.totals).toEqual({
+		expect(
+			november.lines.map((l) => [l.bookingId, l.bookedHours, l.usedHours, l.amountCents / 100])
+		).toEqual([[108, 2, 1.5, 16.8]]);
+		expect(units(november.totals)).toEqual({
 			bookedHours: 2,
 			usedHours: 1.5,
 			billedHours: 2,
@@ -460,7 +482,12 @@ describe('statement edge cases', () => {
 	it('gives an empty month a header and a total of zeros', () => {
 		const empty = statement([], '2026-02', tz);
 		expect(empty.lines).toEqual([]);
-		expect(empty.totals).toEqual({ bookedHours: 0, usedHours: 0, billedHours: 0, amount: 0 });
+		expect(units(empty.totals)).toEqual({
+			bookedHours: 0,
+			usedHours: 0,
+			billedHours: 0,
+			amount: 0
+		});
 		expect(statementCsv(empty, 'Keller group')).toBe(
 			`${STATEMENT_CSV_HEADER}\r\ntotal,,,,,,Keller group 2026-02,0.00,0.00,0.00,,0.00\r\n`
 		);
@@ -494,11 +521,11 @@ describe('statement edge cases', () => {
 	it('rounds amounts half up to the cent despite binary floating point', () => {
 		// 1.5 h × 7.35 = 11.025, which floating point computes as 11.02499…; by hand it is 11.03.
 		const s = statement(
-			[booking({ rate: 7.35, endAt: at('2026-10-06T08:30:00Z') })],
+			[booking({ rateCents: 735, endAt: at('2026-10-06T08:30:00Z') })],
 			'2026-10',
 			tz
 		);
-		expect(s.lines[0].amount).toBe(11.03);
+		expect(s.lines[0].amountCents / 100).toBe(11.03);
 		expect(roundCents(1.005)).toBe(1.01);
 		expect(roundCents(2.675)).toBe(2.68);
 		expect(roundCents(0.004)).toBe(0);
@@ -570,7 +597,7 @@ describe('no-shows freed early and bookings never approved (facility policy)', (
 			'2026-10',
 			tz
 		);
-		expect(s.lines[0]).toMatchObject({ bookedHours: 3, billedHours: 0.25, amount: 3.13 });
+		expect(units(s.lines[0])).toMatchObject({ bookedHours: 3, billedHours: 0.25, amount: 3.13 });
 		expect(s.lines[0].reason).toMatch(/until the rest of the slot was freed/);
 	});
 	it('does not bill a late withdrawal of a booking that was never approved', () => {
@@ -585,5 +612,258 @@ describe('no-shows freed early and bookings never approved (facility policy)', (
 			kind: 'late_cancellation',
 			billable: true
 		});
+	});
+});
+
+describe('money in integer cents, rounded once per line (the rule in usage.ts)', () => {
+	const HOUR = 3_600_000;
+
+	it('rounds a line half up from the exact product of time and rate', () => {
+		// Worked by hand: 1.5 h × 7.35 = 11.025 → 11.03; 0.25 h × 12.50 = 3.125 → 3.13;
+		// 0.5 h × 2.01 = 1.005 → 1.01; 0.75 h × 1.70 = 1.275 → 1.28; 18 min × 3.35 = 1.005 → 1.01.
+		// Binary floating point holds each product just under its half cent, so
+		// Math.round(hours × rate × 100) would give 11.02, 1.00, 1.27 and 1.00.
+		expect(lineCents(1.5 * HOUR, 735)).toBe(1103);
+		expect(lineCents(0.25 * HOUR, 1250)).toBe(313);
+		expect(lineCents(0.5 * HOUR, 201)).toBe(101);
+		expect(lineCents(0.75 * HOUR, 170)).toBe(128);
+		expect(lineCents(18 * 60_000, 335)).toBe(101);
+		expect(Math.round(0.5 * 2.01 * 100)).toBe(100); // the drift the integers avoid
+	});
+
+	it('goes up from exactly half a cent and down from just under it', () => {
+		// 1 s at 18.00/h = 1800 / 3600 = 0.5 cent → 1; 1 s at 17.99/h = 0.4997 cent → 0.
+		expect(lineCents(1000, 1800)).toBe(1);
+		expect(lineCents(1000, 1799)).toBe(0);
+		// 10 s at 18.00/h = 5 cents exactly; nothing billed costs nothing.
+		expect(lineCents(10_000, 1800)).toBe(5);
+		expect(lineCents(0, 1800)).toBe(0);
+		expect(lineCents(HOUR, 0)).toBe(0);
+	});
+
+	it('stays exact where the product passes 2^53: all of October 2026 at 99,999.99 an hour', () => {
+		// 745 h (the month summer time ends) × 9,999,999 cents = 7,449,999,255 cents.
+		const ms = 745 * HOUR;
+		expect(ms * 9_999_999).toBeGreaterThan(Number.MAX_SAFE_INTEGER);
+		expect(lineCents(ms, 9_999_999)).toBe(7_449_999_255);
+		const oct = monthBounds('2026-10', tz);
+		const s = statement(
+			[booking({ startAt: oct.start, endAt: oct.end, rateCents: 9_999_999 })],
+			'2026-10',
+			tz
+		);
+		expect(s.totals.amountCents).toBe(7_449_999_255);
+		expect(statementCsv(s, 'G').split('\r\n')[1].split(',').slice(-2)).toEqual([
+			'99999.99',
+			'74499992.55'
+		]);
+	});
+
+	it('refuses a time or a rate that is not a whole, non-negative number', () => {
+		expect(() => lineCents(1.5, 100)).toThrow(/time/);
+		expect(() => lineCents(-1, 100)).toThrow(/time/);
+		expect(() => lineCents(HOUR, 12.5)).toThrow(/rate/);
+		expect(() => lineCents(HOUR, -1)).toThrow(/rate/);
+	});
+
+	it('rounds hours half up from whole milliseconds', () => {
+		// 1 h 0 min 18 s = 1.005 h → 1.01 (3618000 / 3600000 in floating point is 1.00499…).
+		const s = statement([booking({ endAt: at('2026-10-06T08:00:18Z') })], '2026-10', tz);
+		expect(s.lines[0].bookedHours).toBe(1.01);
+		expect(s.lines[0].billedHours).toBe(1.01);
+		// The amount is the exact time's: 1.005 h × 12.50 = 12.5625 → 12.56.
+		expect(s.lines[0].amountCents).toBe(1256);
+	});
+
+	it('adds a month of lines in cents, where adding units in floating point drifts', () => {
+		// 31 daily bookings of 1 h at 7.35: 31 × 7.35 = 227.85. Added up as numbers in units
+		// the sum comes out 227.84999999999988.
+		const days = Array.from({ length: 31 }, (_, i) =>
+			booking({
+				id: i + 1,
+				rateCents: 735,
+				startAt: at(`2026-10-${String(i + 1).padStart(2, '0')}T08:00:00Z`),
+				endAt: at(`2026-10-${String(i + 1).padStart(2, '0')}T09:00:00Z`)
+			})
+		);
+		expect(days.reduce((sum) => sum + 7.35, 0)).not.toBe(227.85);
+		const s = statement(days, '2026-10', tz);
+		expect(s.lines.every((l) => l.amountCents === 735)).toBe(true);
+		expect(s.totals).toEqual({
+			bookedHours: 31,
+			usedHours: 0,
+			billedHours: 31,
+			amountCents: 22_785
+		});
+		expect(statementCsv(s, 'G').split('\r\n').at(-2)).toBe(
+			'total,,,,,,G 2026-10,31.00,0.00,31.00,,227.85'
+		);
+		// Ten 6-minute bookings at 1.00/h: ten lines of 0.10 make 1.00 (0.1 added ten times
+		// in floating point is 0.9999999999999999).
+		const tenths = Array.from({ length: 10 }, (_, i) =>
+			booking({
+				id: i + 1,
+				rateCents: 100,
+				startAt: at(`2026-10-06T0${i}:00:00Z`),
+				endAt: at(`2026-10-06T0${i}:06:00Z`)
+			})
+		);
+		expect(statement(tenths, '2026-10', tz).totals.amountCents).toBe(100);
+	});
+
+	it('keeps the October 2025 example of the integration test at 84.38', () => {
+		// At 12.50/h (Berlin): 3 h used = 37.50; a no-show freed after 15 min, 0.25 h = 3.125
+		// → 3.13; a late cancellation of 1.5 h = 18.75; 2 h of a booking across the month's end
+		// = 25.00; a withdrawal never approved, an outage and an early cancellation = 0.
+		// 37.50 + 3.13 + 18.75 + 25.00 = 84.38 (the exact products would add to 84.375).
+		const s = statement(
+			[
+				booking({
+					id: 1,
+					startAt: at('2025-10-07T07:00:00Z'),
+					endAt: at('2025-10-07T10:00:00Z'),
+					status: 'completed',
+					checkInAt: at('2025-10-07T07:05:00Z'),
+					checkOutAt: at('2025-10-07T09:35:00Z')
+				}),
+				booking({
+					id: 2,
+					startAt: at('2025-10-14T12:00:00Z'),
+					endAt: at('2025-10-14T14:00:00Z'),
+					heldUntil: at('2025-10-14T12:15:00Z'),
+					status: 'no_show'
+				}),
+				booking({
+					id: 3,
+					startAt: at('2025-10-21T08:00:00Z'),
+					endAt: at('2025-10-21T09:30:00Z'),
+					status: 'cancelled',
+					cancelCause: 'user',
+					cancelledAt: at('2025-10-21T06:00:00Z'),
+					confirmedAt: at('2025-10-01T08:00:00Z')
+				}),
+				booking({
+					id: 4,
+					startAt: at('2025-10-21T12:00:00Z'),
+					endAt: at('2025-10-21T13:00:00Z'),
+					status: 'cancelled',
+					cancelCause: 'user',
+					cancelledAt: at('2025-10-21T11:00:00Z'),
+					confirmedAt: null
+				}),
+				booking({
+					id: 5,
+					startAt: at('2025-10-22T08:00:00Z'),
+					endAt: at('2025-10-22T10:00:00Z'),
+					status: 'cancelled',
+					cancelCause: 'outage',
+					cancelledAt: at('2025-10-22T07:30:00Z')
+				}),
+				booking({
+					id: 6,
+					startAt: at('2025-10-28T08:00:00Z'),
+					endAt: at('2025-10-28T09:00:00Z'),
+					status: 'cancelled',
+					cancelCause: 'user',
+					cancelledAt: at('2025-10-20T08:00:00Z')
+				}),
+				booking({
+					id: 7,
+					startAt: at('2025-10-31T21:00:00Z'),
+					endAt: at('2025-11-01T01:00:00Z'),
+					status: 'completed'
+				})
+			],
+			'2025-10',
+			tz
+		);
+		expect(s.lines.map((l) => l.amountCents)).toEqual([3750, 313, 1875, 0, 0, 0, 2500]);
+		expect(s.totals).toEqual({
+			bookedHours: 12.5,
+			usedHours: 2.5,
+			billedHours: 6.75,
+			amountCents: 8438
+		});
+		expect(statementCsv(s, 'G').split('\r\n').at(-2)!.split(',').slice(-5)).toEqual([
+			'12.50',
+			'2.50',
+			'6.75',
+			'',
+			'84.38'
+		]);
+	});
+});
+
+describe('the currency and closed months’ snapshots', () => {
+	const oneLine = () =>
+		statement(
+			[booking({ rateCents: 735, endAt: at('2026-10-06T08:30:00Z') })],
+			'2026-10',
+			tz,
+			'CHF'
+		);
+
+	it('carries the currency it was drawn up in, EUR unless told', () => {
+		expect(statement([], '2026-10', tz).currency).toBe('EUR');
+		expect(oneLine().currency).toBe('CHF');
+	});
+
+	it('reads a snapshot back as it was taken, currency included', () => {
+		const s = oneLine();
+		const stored = JSON.parse(JSON.stringify(s));
+		expect(statementFromSnapshot(stored, 'EUR')).toEqual(s);
+	});
+
+	it('reads a snapshot from before amounts were kept in cents into cents, exactly', () => {
+		// The shape closed months were stored in: rate and amount in units, no currency.
+		const legacy = {
+			month: '2026-10',
+			tz,
+			start: '2026-09-30T22:00:00.000Z',
+			end: '2026-10-31T23:00:00.000Z',
+			lines: [
+				{
+					bookingId: 1,
+					boxId: 3,
+					boxName: 'Argon C',
+					userName: 'Mira Okafor',
+					startAt: '2026-10-06T07:00:00.000Z',
+					endAt: '2026-10-06T08:30:00.000Z',
+					kind: 'booked_not_checked_in',
+					reason: 'Not checked in: billed as booked.',
+					bookedHours: 1.5,
+					usedHours: 0,
+					billedHours: 1.5,
+					rate: 7.35,
+					amount: 11.03
+				}
+			],
+			totals: { bookedHours: 1.5, usedHours: 0, billedHours: 1.5, amount: 11.03 },
+			byBox: [
+				{
+					boxId: 3,
+					boxName: 'Argon C',
+					bookedHours: 1.5,
+					usedHours: 0,
+					billedHours: 1.5,
+					amount: 11.03
+				}
+			]
+		};
+		const s = statementFromSnapshot(legacy, 'EUR');
+		expect(s.currency).toBe('EUR');
+		expect(s.start).toEqual(at('2026-09-30T22:00:00Z'));
+		expect(s.lines[0]).toMatchObject({ rateCents: 735, amountCents: 1103 });
+		expect(s.lines[0]).not.toHaveProperty('amount');
+		expect(s.lines[0].startAt).toEqual(at('2026-10-06T07:00:00Z'));
+		expect(s.totals).toEqual({
+			bookedHours: 1.5,
+			usedHours: 0,
+			billedHours: 1.5,
+			amountCents: 1103
+		});
+		expect(s.byBox[0].amountCents).toBe(1103);
+		// The CSV is the one the month was closed with.
+		expect(statementCsv(s, 'G').split('\r\n')[1].split(',').slice(-2)).toEqual(['7.35', '11.03']);
 	});
 });

@@ -20,11 +20,22 @@
 // - A booking that spans a month boundary is split: each month bills the hours inside it.
 // - Hours used run from check-in to check-out (or to the booked end if nobody checked out),
 //   clipped to the booked slot; they are reported beside the billed hours, not billed.
-// - Each line's amount is its exact billed hours × its rate, rounded to the cent (half up);
-//   the month's amount is the sum of the rounded line amounts, so a statement adds up. Hours
-//   are shown to 2 decimals; totals of hours are summed from exact values, then rounded.
+//
+// Money (see money.ts) is integer cents from the rate to the total, rounded once:
+// - A line's amount is its billed time × its hourly rate, worked out exactly (whole
+//   milliseconds × whole cents, in integers) and rounded to the cent half up: a half cent
+//   or more goes up. 1.5 h at 7.35 is 11.025, billed 11.03. Half up, not half to even,
+//   because each line is a charge someone checks by hand with a calculator, which rounds
+//   half up; a tie needs the product to land exactly on half a cent, so the bias is rare and
+//   at most half a cent a line.
+// - A box's and the month's amount is the sum of its lines' rounded amounts, in cents, so a
+//   statement adds up as printed; rounding the exact sum once could differ by up to half a
+//   cent a line (the October 2025 example bills 84.38 where the exact products make 84.375).
+// - Hours are shown to 2 decimals, rounded half up the same way from whole milliseconds;
+//   totals of hours are summed from the exact times, then rounded.
 import { DateTime } from 'luxon';
 import type { BookingStatus, CancelCause } from './bookings';
+import { DEFAULT_CURRENCY, plainAmount, toCents } from './money';
 import { local } from './time';
 
 /** Minutes after the start with no check-in before a confirmed booking counts as a no-show. */
@@ -45,8 +56,8 @@ export type UsageBooking = {
 	cancelledAt: Date | null;
 	checkInAt: Date | null;
 	checkOutAt: Date | null;
-	/** The hourly rate that applies: the box's internal or external rate, chosen by the caller. */
-	rate: number;
+	/** The hourly rate that applies, in cents: the box's internal or external rate, chosen by the caller. */
+	rateCents: number;
 	/** The box's late-cancellation window, in hours. */
 	cancelWindowHours: number;
 	/** When it was confirmed; null if it never was (withdrawn while waiting for approval). */
@@ -106,18 +117,20 @@ export type Line = {
 	/** Hours of the booking inside this month, to 2 decimals. */
 	bookedHours: number;
 	usedHours: number;
-	/** bookedHours when the booking is billable, else 0. */
+	/** bookedHours when the booking is billable (a no-show's only until it was freed), else 0. */
 	billedHours: number;
-	rate: number;
-	/** Exact billed hours × rate, rounded to the cent. */
-	amount: number;
+	/** The hourly rate, in cents. */
+	rateCents: number;
+	/** Exact billed time × rate, rounded half up to the cent (once, here). */
+	amountCents: number;
 };
 
 export type Totals = {
 	bookedHours: number;
 	usedHours: number;
 	billedHours: number;
-	amount: number;
+	/** The sum of the lines' amountCents. */
+	amountCents: number;
 };
 
 export type BoxTotals = Totals & { boxId: number; boxName: string };
@@ -126,6 +139,8 @@ export type Statement = {
 	month: string;
 	/** The facility zone the month and the CSV's times are in. */
 	tz: string;
+	/** ISO 4217 code the amounts are in, kept with a closed month's snapshot. */
+	currency: string;
 	start: Date;
 	end: Date;
 	lines: Line[];
@@ -135,14 +150,35 @@ export type Statement = {
 };
 
 const HOUR_MS = 3_600_000;
+const HUNDREDTH_HOUR_MS = 36_000;
 
-/** Half up to `places` decimals; toPrecision first so 1.005 (really 1.00499…) rounds to 1.01. */
-function round(x: number, places: number): number {
-	const f = 10 ** places;
-	return Math.round(Number((x * f).toPrecision(12))) / f;
+/** Whole milliseconds as hours to 2 decimals, half up, in integers: 18 s is 0.005 h → 0.01. */
+function hoursOf(ms: number): number {
+	const hundredths = Math.floor(ms / HUNDREDTH_HOUR_MS);
+	return (hundredths + (2 * (ms % HUNDREDTH_HOUR_MS) >= HUNDREDTH_HOUR_MS ? 1 : 0)) / 100;
 }
 
-export const roundCents = (x: number) => round(x, 2);
+/**
+ * What `ms` of box time costs at `rateCents` an hour, in cents, rounded half up: the one
+ * rounding of a line. Exact: the product of a month of milliseconds and a rate near
+ * MAX_RATE passes 2^53, so it is taken in BigInt.
+ */
+export function lineCents(ms: number, rateCents: number): number {
+	if (!Number.isSafeInteger(ms) || ms < 0) throw new Error(`Not a length of time: ${ms} ms.`);
+	if (!Number.isSafeInteger(rateCents) || rateCents < 0)
+		throw new Error(`Not a rate in cents: ${rateCents}.`);
+	const product = BigInt(ms) * BigInt(rateCents);
+	const hour = BigInt(HOUR_MS);
+	const cents = product / hour;
+	return Number(2n * (product % hour) >= hour ? cents + 1n : cents);
+}
+
+/**
+ * A decimal amount in units rounded half up to the cent, as written: 1.005 → 1.01 although
+ * binary floating point holds 1.00499…. toCents gives the same in cents, which is what
+ * money is kept in; this is for a figure that stays in units.
+ */
+export const roundCents = (x: number) => toCents(x) / 100;
 
 /** "YYYY-MM" with a year from 2000 to 2100, or null. */
 export function parseMonth(text: string): string | null {
@@ -182,26 +218,39 @@ export function monthIsOver(month: string, tz: string, now: Date): boolean {
  * held the box only until its slot was freed; the rest may have gone to someone else.
  */
 export function billedHoursIn(b: Billable, bounds: MonthBounds, charge = chargeOf(b)): number {
+	return billedMsIn(b, bounds, charge) / HOUR_MS;
+}
+
+function billedMsIn(b: Billable, bounds: MonthBounds, charge: Charge): number {
 	if (!charge.billable) return 0;
 	const end =
 		b.status === 'no_show' && b.heldUntil && b.heldUntil < b.endAt ? b.heldUntil : b.endAt;
-	return hoursInMonth(b.startAt, end, bounds);
+	return msInMonth(b.startAt, end, bounds);
+}
+
+/** Real elapsed milliseconds of [startAt, endAt) inside the month's bounds. */
+function msInMonth(startAt: Date, endAt: Date, bounds: MonthBounds): number {
+	const a = Math.max(startAt.getTime(), bounds.start.getTime());
+	const b = Math.min(endAt.getTime(), bounds.end.getTime());
+	return b > a ? b - a : 0;
 }
 
 /** Real elapsed hours of [startAt, endAt) inside the month's bounds. */
 export function hoursInMonth(startAt: Date, endAt: Date, bounds: MonthBounds): number {
-	const a = Math.max(startAt.getTime(), bounds.start.getTime());
-	const b = Math.min(endAt.getTime(), bounds.end.getTime());
-	return b > a ? (b - a) / HOUR_MS : 0;
+	return msInMonth(startAt, endAt, bounds) / HOUR_MS;
 }
 
-/** Hours checked in, from check-in to check-out (or the booked end), within the slot and month. */
-export function usedHoursInMonth(booking: UsageBooking, bounds: MonthBounds): number {
+function usedMsInMonth(booking: UsageBooking, bounds: MonthBounds): number {
 	if (!booking.checkInAt) return 0;
 	const from = Math.max(booking.checkInAt.getTime(), booking.startAt.getTime());
 	const to = Math.min((booking.checkOutAt ?? booking.endAt).getTime(), booking.endAt.getTime());
 	if (to <= from) return 0;
-	return hoursInMonth(new Date(from), new Date(to), bounds);
+	return msInMonth(new Date(from), new Date(to), bounds);
+}
+
+/** Hours checked in, from check-in to check-out (or the booked end), within the slot and month. */
+export function usedHoursInMonth(booking: UsageBooking, bounds: MonthBounds): number {
+	return usedMsInMonth(booking, bounds) / HOUR_MS;
 }
 
 /** "45 min", "3 h", "2 h 30 min", "2 d 15 h": a lead time in words. */
@@ -323,43 +372,48 @@ export function checkRate(x: number): string | null {
 	return null;
 }
 
-type Sums = { booked: number; used: number; billed: number; amount: number };
+/** Exact sums: milliseconds of time and cents of the rounded line amounts. */
+type Sums = { bookedMs: number; usedMs: number; billedMs: number; amountCents: number };
+
+const noSums = (): Sums => ({ bookedMs: 0, usedMs: 0, billedMs: 0, amountCents: 0 });
 
 const totalsOf = (s: Sums): Totals => ({
-	bookedHours: round(s.booked, 2),
-	usedHours: round(s.used, 2),
-	billedHours: round(s.billed, 2),
-	amount: roundCents(s.amount)
+	bookedHours: hoursOf(s.bookedMs),
+	usedHours: hoursOf(s.usedMs),
+	billedHours: hoursOf(s.billedMs),
+	amountCents: s.amountCents
 });
 
-/** The month's statement for the given bookings (one group's, as the caller chooses). */
-export function statement(bookings: UsageBooking[], month: string, tz: string): Statement {
+/**
+ * The month's statement for the given bookings (one group's, as the caller chooses), in
+ * the facility's currency.
+ */
+export function statement(
+	bookings: UsageBooking[],
+	month: string,
+	tz: string,
+	currency = DEFAULT_CURRENCY
+): Statement {
 	const bounds = monthBounds(month, tz);
 	const inMonth = bookings
 		.filter((b) => b.startAt < bounds.end && b.endAt > bounds.start)
 		.sort((a, b) => a.startAt.getTime() - b.startAt.getTime() || a.id - b.id);
 
-	const all: Sums = { booked: 0, used: 0, billed: 0, amount: 0 };
+	const all = noSums();
 	const boxes = new Map<number, Sums & { boxName: string }>();
 	const lines = inMonth.map((b): Line => {
 		const charge = chargeOf(b);
-		const booked = hoursInMonth(b.startAt, b.endAt, bounds);
-		const used = usedHoursInMonth(b, bounds);
+		const bookedMs = msInMonth(b.startAt, b.endAt, bounds);
+		const usedMs = usedMsInMonth(b, bounds);
 		// A no-show held the box only until its slot was freed; the rest may have been resold.
-		const billed = billedHoursIn(b, bounds, charge);
-		const amount = roundCents(billed * b.rate);
-		const box = boxes.get(b.boxId) ?? {
-			boxName: b.boxName,
-			booked: 0,
-			used: 0,
-			billed: 0,
-			amount: 0
-		};
+		const billedMs = billedMsIn(b, bounds, charge);
+		const amountCents = lineCents(billedMs, b.rateCents);
+		const box = boxes.get(b.boxId) ?? { boxName: b.boxName, ...noSums() };
 		for (const s of [all, box]) {
-			s.booked += booked;
-			s.used += used;
-			s.billed += billed;
-			s.amount += amount;
+			s.bookedMs += bookedMs;
+			s.usedMs += usedMs;
+			s.billedMs += billedMs;
+			s.amountCents += amountCents;
 		}
 		boxes.set(b.boxId, box);
 		return {
@@ -371,17 +425,18 @@ export function statement(bookings: UsageBooking[], month: string, tz: string): 
 			endAt: b.endAt,
 			kind: charge.kind,
 			reason: charge.reason,
-			bookedHours: round(booked, 2),
-			usedHours: round(used, 2),
-			billedHours: round(billed, 2),
-			rate: b.rate,
-			amount
+			bookedHours: hoursOf(bookedMs),
+			usedHours: hoursOf(usedMs),
+			billedHours: hoursOf(billedMs),
+			rateCents: b.rateCents,
+			amountCents
 		};
 	});
 
 	return {
 		month,
 		tz,
+		currency,
 		start: bounds.start,
 		end: bounds.end,
 		lines,
@@ -389,6 +444,45 @@ export function statement(bookings: UsageBooking[], month: string, tz: string): 
 		byBox: [...boxes]
 			.map(([boxId, s]) => ({ boxId, boxName: s.boxName, ...totalsOf(s) }))
 			.sort((a, b) => a.boxName.localeCompare(b.boxName) || a.boxId - b.boxId)
+	};
+}
+
+/** Money as a snapshot holds it: in cents, or, taken before money was kept in cents, in units. */
+type StoredMoney = { amountCents?: number; amount?: number };
+type StoredLine = Omit<Line, 'rateCents' | 'amountCents'> &
+	StoredMoney & { rateCents?: number; rate?: number };
+type StoredStatement = Omit<Statement, 'currency' | 'lines' | 'totals' | 'byBox'> & {
+	currency?: string;
+	lines: StoredLine[];
+	totals: Omit<Totals, 'amountCents'> & StoredMoney;
+	byBox: (Omit<BoxTotals, 'amountCents'> & StoredMoney)[];
+};
+
+/** Units were stored to the cent, so reading their decimal form back is exact. */
+const centsOf = ({ amountCents, amount }: StoredMoney) => amountCents ?? toCents(amount ?? 0);
+
+/**
+ * A closed month's statement read back from its JSON snapshot: instants from strings, and a
+ * snapshot taken before money was kept in cents (amounts in units, no currency) read into
+ * cents in `currency`, the facility's currency, which it was drawn up in.
+ */
+export function statementFromSnapshot(stored: unknown, currency: string): Statement {
+	const s = stored as StoredStatement;
+	const date = (v: Date | string) => new Date(v);
+	return {
+		...s,
+		currency: s.currency ?? currency,
+		start: date(s.start),
+		end: date(s.end),
+		lines: s.lines.map(({ rate, amount, ...l }) => ({
+			...l,
+			startAt: date(l.startAt),
+			endAt: date(l.endAt),
+			rateCents: l.rateCents ?? toCents(rate ?? 0),
+			amountCents: centsOf({ amountCents: l.amountCents, amount })
+		})),
+		totals: (({ amount, ...t }) => ({ ...t, amountCents: centsOf({ ...t, amount }) }))(s.totals),
+		byBox: s.byBox.map(({ amount, ...b }) => ({ ...b, amountCents: centsOf({ ...b, amount }) }))
 	};
 }
 
@@ -405,6 +499,7 @@ function field(text: string): string {
 	return /[",\r\n]/.test(safe) ? `"${safe.replaceAll('"', '""')}"` : safe;
 }
 
+/** Hours to their 2 decimals; they are rounded already. */
 const num = (x: number) => x.toFixed(2);
 
 /**
@@ -416,7 +511,8 @@ const isoSeconds = (at: Date | string, tz: string) =>
 
 /**
  * The statement as CSV (RFC 4180: CRLF line ends, quoted fields): one line per booking, then
- * a `total` line that carries the group and month in its reason column.
+ * a `total` line that carries the group and month in its reason column. Rates and amounts
+ * are plain decimals in the statement's currency (84.38), never with a currency sign.
  */
 export function statementCsv(s: Statement, groupName: string): string {
 	const rows = [STATEMENT_CSV_HEADER];
@@ -433,8 +529,8 @@ export function statementCsv(s: Statement, groupName: string): string {
 				num(l.bookedHours),
 				num(l.usedHours),
 				num(l.billedHours),
-				num(l.rate),
-				num(l.amount)
+				plainAmount(l.rateCents),
+				plainAmount(l.amountCents)
 			].join(',')
 		);
 	}
@@ -452,7 +548,7 @@ export function statementCsv(s: Statement, groupName: string): string {
 			num(t.usedHours),
 			num(t.billedHours),
 			'',
-			num(t.amount)
+			plainAmount(t.amountCents)
 		].join(',')
 	);
 	return rows.map((r) => `${r}\r\n`).join('');

@@ -20,6 +20,8 @@ export const statementSnapshots = mysqlTable(
 		groupId: int()
 			.notNull()
 			.references(() => researchGroups.id, { onDelete: 'cascade' }),
+		// domain/usage.ts's Statement: money in integer cents, with its currency. Older rows
+		// hold `rate` and `amount` in units and no currency; statementFromSnapshot reads both.
 		statement: json().$type<unknown>().notNull()
 	},
 	(t) => [primaryKey({ columns: [t.month, t.groupId] })]

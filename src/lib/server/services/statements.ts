@@ -1,15 +1,16 @@
 // Monthly statements per group: worked out from the bookings while a month is open, read
 // from the snapshot taken when a manager closed it, so closed figures never change.
-import { and, asc, desc, eq, gt, gte, inArray, lt } from 'drizzle-orm';
+import { and, asc, desc, eq, gt, gte, inArray, lt, sql } from 'drizzle-orm';
 import { LONGEST_BOOKING_MS } from '$lib/domain/bookings';
 import { DateTime } from 'luxon';
+import { toCents } from '$lib/domain/money';
 import { hasRole } from '$lib/domain/roles';
 import {
 	monthBounds,
 	monthIsOver,
 	parseMonth,
 	statement,
-	type Statement,
+	statementFromSnapshot,
 	type UsageBooking
 } from '$lib/domain/usage';
 import { config } from '../config';
@@ -41,6 +42,17 @@ export function monthParam(text: string): string {
 }
 
 /**
+ * A DECIMAL(10,2) rate in cents, read from the text MariaDB sends (mysql2 gives DECIMAL as a
+ * string), so the column's number mapping never turns it into a binary fraction first.
+ */
+const rateCents = (column: typeof boxes.rateInternal | typeof boxes.rateExternal) =>
+	sql`${column}`.mapWith((value: string | number) => toCents(value));
+
+/** A month's statement in the facility's zone and currency. */
+const facilityStatement = (rows: UsageBooking[], month: string) =>
+	statement(rows, month, config.facilityTz, config.facilityCurrency);
+
+/**
  * The bookings of the given groups (all groups when omitted) that touch the month, each
  * with the rate that applies to its group, by group id: one indexed range read.
  */
@@ -69,8 +81,8 @@ async function usageBookings(
 			checkOutAt: bookings.checkOutAt,
 			confirmedAt: bookings.confirmedAt,
 			heldUntil: bookings.blockedUntil,
-			rateInternal: boxes.rateInternal,
-			rateExternal: boxes.rateExternal,
+			rateInternal: rateCents(boxes.rateInternal),
+			rateExternal: rateCents(boxes.rateExternal),
 			cancelWindowHours: boxes.cancelWindowHours
 		})
 		.from(bookings)
@@ -98,7 +110,7 @@ async function usageBookings(
 			...b,
 			// blocked_until is when a no-show's slot was freed; for others it is not used.
 			heldUntil: b.status === 'no_show' ? heldUntil : null,
-			rate: external ? rateExternal : rateInternal
+			rateCents: external ? rateExternal : rateInternal
 		});
 		byGroup.set(groupId!, list);
 	}
@@ -108,18 +120,7 @@ async function usageBookings(
 /** One group's month, worked out from its bookings now. */
 async function liveStatement(group: GroupRef, month: string) {
 	const rows = (await usageBookings(db, month, [group])).get(group.id) ?? [];
-	return statement(rows, month, config.facilityTz);
-}
-
-/** A statement read back from JSON has its instants as strings. */
-function revive(s: Statement): Statement {
-	const date = (v: Date | string) => new Date(v);
-	return {
-		...s,
-		start: date(s.start),
-		end: date(s.end),
-		lines: s.lines.map((l) => ({ ...l, startAt: date(l.startAt), endAt: date(l.endAt) }))
-	};
+	return facilityStatement(rows, month);
 }
 
 async function closedMonth(month: string) {
@@ -158,8 +159,8 @@ export async function statementFor(
 			.where(and(eq(statementSnapshots.month, month), eq(statementSnapshots.groupId, groupId)));
 		// A group with no snapshot had nothing to bill when the month was closed.
 		const figures = snap
-			? revive(snap.statement as Statement)
-			: statement([], month, config.facilityTz);
+			? statementFromSnapshot(snap.statement, config.facilityCurrency)
+			: facilityStatement([], month);
 		return { group, statement: figures, closed };
 	}
 	return {
@@ -178,9 +179,7 @@ export async function usageThisMonth(group: GroupRef, now = new Date()) {
 export async function usageThisMonthFor(groups: GroupRef[], now = new Date()) {
 	const month = DateTime.fromJSDate(now).setZone(config.facilityTz).toFormat('yyyy-MM');
 	const byGroup = await usageBookings(db, month, groups);
-	return new Map(
-		groups.map((g) => [g.id, statement(byGroup.get(g.id) ?? [], month, config.facilityTz)])
-	);
+	return new Map(groups.map((g) => [g.id, facilityStatement(byGroup.get(g.id) ?? [], month)]));
 }
 
 /** Closes a month that is over: every group's statement is frozen as it stands now. */
@@ -213,7 +212,7 @@ async function closeIn(actor: Actor, month: string, now: Date) {
 			.map(([groupId, rows]) => ({
 				month,
 				groupId,
-				statement: statement(rows, month, config.facilityTz)
+				statement: facilityStatement(rows, month)
 			}))
 			.filter((s) => s.statement.lines.length);
 		if (snapshots.length) await tx.insert(statementSnapshots).values(snapshots);
