@@ -3,8 +3,14 @@ import { rmSync, writeFileSync } from 'node:fs';
 import { join } from 'node:path';
 import { and, eq, inArray, sql } from 'drizzle-orm';
 import ICAL from 'ical.js';
-import { bookings, notifications, outages, outbox } from '../../src/lib/server/db/schema';
-import { closeTestDb, makeBox, makeUser, testDb } from '../support/db';
+import {
+	bookings,
+	groupMemberships,
+	notifications,
+	outages,
+	outbox
+} from '../../src/lib/server/db/schema';
+import { closeTestDb, makeBox, makeGroup, makeUser, testDb } from '../support/db';
 import { errorOf, signedIn } from '../support/http';
 import { sunkMail } from '../support/mail';
 import { slot } from '../support/time';
@@ -342,6 +348,55 @@ describe('rebooking after an outage', () => {
 				})
 			).status
 		).toBe(409);
+	});
+});
+
+describe('rebooking keeps the booking’s group', () => {
+	it('a member of two groups rebooks and is billed to the group the cancelled booking was', async () => {
+		const boxId = await makeBox();
+		const [first, second] = [await makeGroup('first'), await makeGroup('second')];
+		const member = await makeUser('member', { group: first.id });
+		await testDb()
+			.insert(groupMemberships)
+			.values({ groupId: second.id, userId: member.id, status: 'active' });
+		const client = await signedIn(member);
+		const made = await client.post('/api/bookings', {
+			boxId,
+			...slot(2, 9, 60),
+			purpose: 'Billed to the second group',
+			groupId: second.id
+		});
+		expect(made.status).toBe(201);
+		const { booking } = await made.json();
+		const manager = await signedIn(await makeUser('manager'));
+		await manager.post(`/api/boxes/${boxId}/outages`, {
+			start: slot(2, 8, 0).start,
+			end: slot(2, 11, 0).start,
+			kind: 'leak',
+			reason: 'Leak at the window seal'
+		});
+		const later = slot(3, 14, 60);
+		const rebooked = await client.form('/bookings?/rebook', {
+			fromBookingId: booking.id,
+			boxId,
+			start: new Date(later.start).toISOString(),
+			end: new Date(later.end).toISOString()
+		});
+		expect(rebooked.status).toBe(200);
+		const [made2] = await testDb()
+			.select()
+			.from(bookings)
+			.where(and(eq(bookings.userId, member.id), eq(bookings.status, 'confirmed')));
+		expect(made2).toMatchObject({ groupId: second.id, purpose: 'Billed to the second group' });
+		// Someone else's booking cannot be rebooked from.
+		const other = await signedIn(await makeUser('member'));
+		const refused = await other.form('/bookings?/rebook', {
+			fromBookingId: booking.id,
+			boxId,
+			start: new Date(later.start).toISOString(),
+			end: new Date(later.end).toISOString()
+		});
+		expect([403, 404]).toContain(refused.status);
 	});
 });
 

@@ -6,13 +6,13 @@ import { requireRole } from './guard';
 import { readJson } from './http';
 import { idParam } from './params';
 import { check } from './services/checkins';
-import { readingSchema } from '$lib/validation/readings';
+import { checkReadingSchema } from '$lib/validation/readings';
 
 /** POST /api/bookings/:id/check-in and check-out: `{o2Ppm, h2oPpm, note?}`. */
 export async function checkEndpoint(event: RequestEvent<{ id: string }>, which: 'in' | 'out') {
 	const user = requireRole(event, 'member');
 	const id = idParam(event.params.id, 'The booking');
-	const { o2Ppm, h2oPpm, note } = await readJson(event.request, readingSchema.omit({ at: true }));
+	const { o2Ppm, h2oPpm, note } = await readJson(event.request, checkReadingSchema);
 	const result = await serve(() => check(user, id, which, { o2Ppm, h2oPpm, note }));
 	return json(
 		{

@@ -36,9 +36,12 @@ export const registerSchema = z.object({
 
 export const changePasswordSchema = z
 	.object({
-		currentPassword: z.string().min(1, 'Enter your current password.').max(256),
+		currentPassword: z
+			.string({ error: 'Enter your current password.' })
+			.min(1, 'Enter your current password.')
+			.max(256),
 		newPassword,
-		confirmPassword: z.string()
+		confirmPassword: z.string({ error: 'Repeat the new password.' })
 	})
 	.refine((v) => v.newPassword === v.confirmPassword, {
 		message: 'The two new passwords differ.',
@@ -46,10 +49,22 @@ export const changePasswordSchema = z
 	});
 
 export const roleSchema = z.object({
-	userId: z.coerce.number().int().positive(),
+	userId: z.coerce.number({ error: 'Choose a user.' }).int().positive('Choose a user.'),
 	role: z.enum(['member', 'trainer', 'manager', 'admin'], { error: 'Choose a role.' })
 });
 
 export const decisionSchema = z.object({
-	userId: z.coerce.number().int().positive()
+	userId: z.coerce
+		.number({ error: 'Choose an account to decide.' })
+		.int()
+		.positive('Choose an account to decide.')
 });
+
+export const joinSchema = z.strictObject({
+	groupId: z.coerce
+		.number({ error: 'Choose a group.' })
+		.int('Choose a group.')
+		.positive('Choose a group.')
+});
+
+export const emailPreferencesSchema = z.strictObject({ confirmations: z.boolean() });

@@ -6,7 +6,7 @@ export const isoDateTime = (field: string) =>
 	z.iso
 		.datetime({
 			offset: true,
-			error: `${field} must be an ISO 8601 date-time with an offset, e.g. 2026-12-02T09:00:00+01:00.`
+			error: `Give a ${field} date and time that exist (ISO 8601 with an offset, e.g. 2026-12-02T09:00:00+01:00).`
 		})
 		.transform((s) => new Date(s));
 
@@ -65,6 +65,36 @@ export const cancelSchema = z.object({
 });
 
 export const declineSchema = z.object({
-	bookingId: z.coerce.number().int().positive(),
-	reason: z.string().trim().min(1, 'Say why the booking is declined.').max(500)
+	bookingId: z.coerce
+		.number({ error: 'Choose a booking.' })
+		.int('Choose a booking.')
+		.positive('Choose a booking.'),
+	reason: z
+		.string({ error: 'Say why the booking is declined.' })
+		.trim()
+		.min(1, 'Say why the booking is declined.')
+		.max(500)
 });
+
+export const approveBookingSchema = declineSchema.pick({ bookingId: true });
+
+const bookingId = z.coerce
+	.number({ error: 'Choose a booking.' })
+	.int('Choose a booking.')
+	.positive('Choose a booking.');
+
+/** Cancelling one of one's bookings from My bookings. */
+export const cancelFormSchema = z.strictObject({
+	bookingId,
+	reason: z.string().trim().max(500, 'Use at most 500 characters.').optional()
+});
+
+/** Taking one of the free times offered after an outage cancelled a booking. */
+export const rebookSchema = z
+	.strictObject({
+		fromBookingId: bookingId,
+		boxId: z.coerce.number({ error: 'Choose a box.' }).int().positive('Choose a box.'),
+		start: isoDateTime('start'),
+		end: isoDateTime('end')
+	})
+	.refine((v) => v.end > v.start, { path: ['end'], message: 'The end must be after the start.' });

@@ -113,7 +113,7 @@ export const boxSchema = z
 export type BoxInput = z.output<typeof boxSchema>;
 
 /** Reads the box form (repeated port fields, checkboxes) into the schema's shape. */
-export function boxFormToInput(form: FormData): unknown {
+export function boxFormToInput(form: FormData): Record<string, unknown> {
 	const positions = form.getAll('portPosition').map(String);
 	const diameters = form.getAll('portDiameterMm').map(String);
 	const fields = Object.fromEntries(

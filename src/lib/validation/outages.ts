@@ -3,7 +3,7 @@ import { outageKinds } from '$lib/domain/bookings';
 import { isoDateTime } from './bookings';
 
 export const outageSchema = z
-	.object({
+	.strictObject({
 		start: isoDateTime('start'),
 		end: isoDateTime('end'),
 		kind: z.enum(outageKinds, { error: 'Choose what kind of upkeep this is.' }),
@@ -17,3 +17,14 @@ export const outageSchema = z
 		path: ['end'],
 		message: 'The expected end must be after the start.'
 	});
+
+const outageId = z.coerce
+	.number({ error: 'Choose an outage.' })
+	.int('Choose an outage.')
+	.positive('Choose an outage.');
+
+/** Ending an outage from the box page. */
+export const endOutageSchema = z.strictObject({ outageId });
+
+/** Moving an outage's expected end from the box page. */
+export const moveOutageSchema = z.strictObject({ outageId, end: isoDateTime('end') });

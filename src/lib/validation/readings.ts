@@ -2,27 +2,32 @@ import { z } from 'zod';
 import { checkReading } from '$lib/domain/atmosphere';
 import { isoDateTime } from './bookings';
 
-const ppm = (label: string) =>
-	z
-		.number({ error: `${label} must be a number of ppm.` })
-		.finite(`${label} must be a number of ppm.`);
+/** A number of ppm; typed into a form it may use a decimal comma. */
+const ppm = z.preprocess(
+	(v) => (typeof v === 'string' ? (v.trim() ? Number(v.replace(',', '.')) : undefined) : v),
+	z.unknown()
+);
 
-export const readingSchema = z.object({
-	at: isoDateTime('at').optional(),
-	o2Ppm: ppm('O₂'),
-	h2oPpm: ppm('H₂O'),
+const fields = {
+	o2Ppm: ppm,
+	h2oPpm: ppm,
 	note: z.string().trim().max(500, 'Use at most 500 characters.').optional()
-});
+};
 
-/**
- * A reading typed into a form (a decimal comma is taken as a point): the values and a
- * field → message map, empty when the reading can be recorded.
- */
-export function readingFromForm(values: Record<string, string>) {
-	const number = (v: string | undefined) => (v?.trim() ? Number(v.replace(',', '.')) : Number.NaN);
-	const reading = { o2Ppm: number(values.o2Ppm), h2oPpm: number(values.h2oPpm) };
-	const errors: Record<string, string> = checkReading(reading);
-	const note = (values.note ?? '').trim();
-	if (note.length > 500) errors.note = 'Use at most 500 characters.';
-	return { reading: { ...reading, note }, errors };
+/** The domain decides what a possible reading is; its messages land on their fields. */
+function possible<S extends z.ZodType<{ o2Ppm: unknown; h2oPpm: unknown }>>(schema: S) {
+	return schema
+		.superRefine((v, ctx) => {
+			for (const [field, message] of Object.entries(checkReading(v)))
+				ctx.addIssue({ code: 'custom', path: [field], message });
+		})
+		.transform((v) => ({ ...v, o2Ppm: v.o2Ppm as number, h2oPpm: v.h2oPpm as number }));
 }
+
+/** A reading, from the API or the box page's form. */
+export const readingSchema = possible(
+	z.strictObject({ at: isoDateTime('at').optional(), ...fields })
+);
+
+/** A reading taken at check-in or check-out: now, so no time of its own. */
+export const checkReadingSchema = possible(z.strictObject(fields));

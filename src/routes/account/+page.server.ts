@@ -1,4 +1,3 @@
-import { fail } from '@sveltejs/kit';
 import { endOtherSessions } from '$lib/server/auth';
 import { requireUser } from '$lib/server/guard';
 import {
@@ -7,13 +6,11 @@ import {
 	profile,
 	setEmailPreferences
 } from '$lib/server/services/accounts';
-import { attempt } from '$lib/server/services/errors';
 import { listBoxes } from '$lib/server/services/boxes';
 import { listGroupNames, requestMembership } from '$lib/server/services/groups';
 import { feedTokenCreatedAt, feedUrls, newFeedToken } from '$lib/server/services/feeds';
-import { changePasswordSchema } from '$lib/validation/account';
-import { fieldErrors } from '$lib/validation/fields';
-import { formId } from '$lib/server/forms';
+import { changePasswordSchema, emailPreferencesSchema, joinSchema } from '$lib/validation/account';
+import { runForm } from '$lib/server/forms';
 import type { Actions, PageServerLoad } from './$types';
 
 export const load: PageServerLoad = async (event) => {
@@ -36,10 +33,15 @@ export const load: PageServerLoad = async (event) => {
 export const actions: Actions = {
 	join: async (event) => {
 		const user = requireUser(event);
-		const groupId = formId((await event.request.formData()).get('groupId'));
-		const result = await attempt(() => requestMembership(user, groupId));
-		if (!result.ok) return fail(result.error.status, { join: result.error.message });
-		return { joined: true };
+		return runForm(
+			event.request,
+			joinSchema,
+			async ({ groupId }) => {
+				await requestMembership(user, groupId);
+				return { joined: true };
+			},
+			{ form: 'join' }
+		);
 	},
 	feed: async (event) => {
 		const user = requireUser(event);
@@ -58,29 +60,28 @@ export const actions: Actions = {
 	},
 	prefs: async (event) => {
 		const user = requireUser(event);
-		const form = await event.request.formData();
-		await setEmailPreferences(user.id, { confirmations: form.get('confirmations') === 'on' });
-		return { prefsSaved: true };
+		return runForm(
+			event.request,
+			emailPreferencesSchema,
+			async (prefs) => {
+				await setEmailPreferences(user.id, prefs);
+				return { prefsSaved: true };
+			},
+			{ form: 'prefs', booleans: ['confirmations'] }
+		);
 	},
 	password: async (event) => {
 		const user = requireUser(event);
-		const parsed = changePasswordSchema.safeParse(
-			Object.fromEntries(await event.request.formData())
+		return runForm(
+			event.request,
+			changePasswordSchema,
+			async ({ currentPassword, newPassword }) => {
+				await changePassword(user.id, currentPassword, newPassword);
+				// The session in hand stays; every other one (other browsers, a lost laptop) ends.
+				await endOtherSessions(user.id, event.locals.session!.id);
+				return { changed: true };
+			},
+			{ form: 'password' }
 		);
-		if (!parsed.success) return fail(400, { errors: fieldErrors(parsed.error) });
-
-		const result = await attempt(() =>
-			changePassword(user.id, parsed.data.currentPassword, parsed.data.newPassword)
-		);
-		if (!result.ok) {
-			const details = result.error.details as { fields?: Record<string, string> } | undefined;
-			return fail(result.error.status, {
-				errors: details?.fields ?? {},
-				message: result.error.message
-			});
-		}
-		// The session in hand stays; every other one (other browsers, a lost laptop) ends.
-		await endOtherSessions(user.id, event.locals.session!.id);
-		return { changed: true };
 	}
 };

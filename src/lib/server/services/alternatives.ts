@@ -3,7 +3,7 @@ import { LONGEST_HOLD_MS } from '$lib/domain/bookings';
 import { findAlternatives, type Alternative } from '$lib/domain/alternatives';
 import { config } from '../config';
 import type { Database } from '../db/connect';
-import type { Transaction } from '../db';
+import { db, type Transaction } from '../db';
 import { bookings, boxes, boxRequiredModules, certifications, outages } from '../db/schema';
 
 const WINDOW_DAYS = 7;
@@ -95,4 +95,28 @@ export async function alternativeFinder(
 		memo.set(key, offers);
 		return offers;
 	};
+}
+
+/**
+ * Fresh offers for the user's bookings an outage cancelled in the last week, checked again
+ * when one is taken.
+ */
+export async function rebookOffers(
+	userId: number,
+	cancelled: { id: number; boxId: number; boxName: string; startAt: Date; endAt: Date }[],
+	now = new Date()
+) {
+	if (!cancelled.length) return [];
+	const alternativesFor = await alternativeFinder(db, [userId], now);
+	return cancelled.map((b) => ({
+		bookingId: b.id,
+		boxName: b.boxName,
+		startAt: b.startAt,
+		endAt: b.endAt,
+		offers: alternativesFor(
+			userId,
+			Math.round((b.endAt.getTime() - b.startAt.getTime()) / 60_000),
+			b.boxId
+		)
+	}));
 }

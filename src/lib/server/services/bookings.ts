@@ -78,6 +78,31 @@ export function toPublic(b: BookingView, tz = config.facilityTz): PublicBooking 
 	};
 }
 
+/**
+ * Books a free time offered after an outage cancelled `fromBookingId`: the same purpose,
+ * chemicals and billing group as the booking it replaces, through the same rules as any.
+ */
+export async function rebook(
+	actor: Actor,
+	fromBookingId: number,
+	slot: { boxId: number; start: Date; end: Date },
+	now = new Date()
+) {
+	const original = await getBooking(actor, fromBookingId);
+	if (original.userId !== actor.id) throw notFound('The booking');
+	return createBooking(
+		actor,
+		{
+			...slot,
+			purpose: original.purpose,
+			chemicalClasses: original.chemicalClasses,
+			volatileSolvents: original.volatileSolvents,
+			groupId: original.groupId ?? undefined
+		},
+		now
+	);
+}
+
 /** One booking, for its holder or a manager. */
 export async function getBooking(actor: Actor, id: number) {
 	const [booking] = await db.select().from(bookings).where(eq(bookings.id, id));

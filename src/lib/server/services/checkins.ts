@@ -12,7 +12,7 @@ import { hasRole } from '$lib/domain/roles';
 import { db } from '../db';
 import { bookings, boxes } from '../db/schema';
 import type { Actor } from './accounts';
-import { withReadings } from './atmosphere';
+import { latestReadings, withReadings } from './atmosphere';
 import { insertReading } from './atmosphere';
 import { audit } from './audit';
 import { forbidden, notFound, ServiceError } from './errors';
@@ -115,4 +115,33 @@ export async function pendingCheck(userId: number, now = new Date()) {
 		if (prompt) return { id: b.id, boxName: b.boxName, startAt: b.startAt, endAt: b.endAt, prompt };
 	}
 	return null;
+}
+
+/** A booking's check-in page: the booking, what refuses each check now, the box's last reading. */
+export async function checkView(actor: Actor, id: number, now = new Date()) {
+	const [booking] = await db
+		.select({
+			id: bookings.id,
+			userId: bookings.userId,
+			boxId: bookings.boxId,
+			boxName: boxes.name,
+			status: bookings.status,
+			startAt: bookings.startAt,
+			endAt: bookings.endAt,
+			purpose: bookings.purpose,
+			checkInAt: bookings.checkInAt,
+			checkOutAt: bookings.checkOutAt
+		})
+		.from(bookings)
+		.innerJoin(boxes, eq(boxes.id, bookings.boxId))
+		.where(eq(bookings.id, id));
+	// Someone else's booking is not found, as on every page that lists only one's own.
+	if (!booking || (booking.userId !== actor.id && !hasRole(actor.role, 'manager')))
+		throw notFound('The booking');
+	return {
+		booking,
+		canCheckIn: checkInRefusal(booking, now),
+		canCheckOut: checkOutRefusal(booking, now),
+		lastReading: (await latestReadings(booking.boxId, 1))[0] ?? null
+	};
 }

@@ -1,7 +1,6 @@
-import { fail } from '@sveltejs/kit';
 import { requireRole } from '$lib/server/guard';
 import { listUsers, setRole } from '$lib/server/services/accounts';
-import { attempt } from '$lib/server/services/errors';
+import { runForm } from '$lib/server/forms';
 import { roleSchema } from '$lib/validation/account';
 import type { Actions, PageServerLoad } from './$types';
 
@@ -13,10 +12,9 @@ export const load: PageServerLoad = async (event) => {
 export const actions: Actions = {
 	role: async (event) => {
 		const actor = requireRole(event, 'admin');
-		const parsed = roleSchema.safeParse(Object.fromEntries(await event.request.formData()));
-		if (!parsed.success) return fail(400, { message: 'Choose a user and a role.' });
-		const result = await attempt(() => setRole(actor, parsed.data.userId, parsed.data.role));
-		if (!result.ok) return fail(result.error.status, { message: result.error.message });
-		return { saved: parsed.data.userId };
+		return runForm(event.request, roleSchema, async ({ userId, role }) => {
+			await setRole(actor, userId, role);
+			return { saved: userId };
+		});
 	}
 };

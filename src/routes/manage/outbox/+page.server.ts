@@ -1,8 +1,9 @@
-import { fail } from '@sveltejs/kit';
+import { z } from 'zod';
 import { requireRole } from '$lib/server/guard';
 import { retryMessage } from '$lib/server/mail/worker';
 import { outboxPage } from '$lib/server/services/notifications';
-import { formId } from '$lib/server/forms';
+import { runForm } from '$lib/server/forms';
+import { ServiceError } from '$lib/server/services/errors';
 import type { Actions, PageServerLoad } from './$types';
 
 const statuses = ['pending', 'sending', 'sent', 'failed'] as const;
@@ -14,13 +15,17 @@ export const load: PageServerLoad = async (event) => {
 	return { rows: await outboxPage(status), status: status ?? null };
 };
 
+const retrySchema = z.strictObject({
+	id: z.coerce.number({ error: 'Choose a message.' }).int().positive('Choose a message.')
+});
+
 export const actions: Actions = {
 	retry: async (event) => {
 		requireRole(event, 'manager');
-		const id = formId((await event.request.formData()).get('id'));
-		if (!Number.isSafeInteger(id) || !(await retryMessage(id))) {
-			return fail(409, { message: 'Only a failed message can be retried.' });
-		}
-		return { retried: id };
+		return runForm(event.request, retrySchema, async ({ id }) => {
+			if (!(await retryMessage(id)))
+				throw new ServiceError(409, 'Only a failed message can be retried.');
+			return { retried: id };
+		});
 	}
 };

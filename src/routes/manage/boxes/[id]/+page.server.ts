@@ -1,5 +1,5 @@
 import { error, redirect } from '@sveltejs/kit';
-import { invalidForm, refusedForm } from '$lib/server/forms';
+import { runForm } from '$lib/server/forms';
 import { requireRole } from '$lib/server/guard';
 import { idParam } from '$lib/server/params';
 import { getBox, updateBox } from '$lib/server/services/boxes';
@@ -31,11 +31,13 @@ export const actions: Actions = {
 	default: async (event) => {
 		const actor = requireRole(event, 'manager');
 		const id = idParam(event.params.id, 'The box');
-		const raw = boxFormToInput(await event.request.formData());
-		const parsed = boxSchema.safeParse(raw);
-		if (!parsed.success) return invalidForm(raw, parsed.error);
-		const result = await attempt(() => updateBox(actor, id, parsed.data));
-		if (!result.ok) return refusedForm(raw, result.error);
-		redirect(303, `/boxes/${id}`);
+		const answer = await runForm(
+			event.request,
+			boxSchema,
+			async (input) => ({ updated: await updateBox(actor, id, input) }),
+			{ read: boxFormToInput }
+		);
+		if ('updated' in answer) redirect(303, `/boxes/${id}`);
+		return answer;
 	}
 };

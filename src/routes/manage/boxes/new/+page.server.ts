@@ -1,8 +1,7 @@
 import { redirect } from '@sveltejs/kit';
-import { invalidForm, refusedForm } from '$lib/server/forms';
+import { runForm } from '$lib/server/forms';
 import { requireRole } from '$lib/server/guard';
 import { createBox } from '$lib/server/services/boxes';
-import { attempt } from '$lib/server/services/errors';
 import { listModules } from '$lib/server/services/training';
 import { boxFormToInput, boxSchema } from '$lib/validation/boxes';
 import type { Actions, PageServerLoad } from './$types';
@@ -39,11 +38,13 @@ export const load: PageServerLoad = async (event) => {
 export const actions: Actions = {
 	default: async (event) => {
 		const actor = requireRole(event, 'manager');
-		const raw = boxFormToInput(await event.request.formData());
-		const parsed = boxSchema.safeParse(raw);
-		if (!parsed.success) return invalidForm(raw, parsed.error);
-		const result = await attempt(() => createBox(actor, parsed.data));
-		if (!result.ok) return refusedForm(raw, result.error);
-		redirect(303, `/boxes/${result.value}`);
+		const answer = await runForm(
+			event.request,
+			boxSchema,
+			async (input) => ({ id: await createBox(actor, input) }),
+			{ read: boxFormToInput }
+		);
+		if ('id' in answer) redirect(303, `/boxes/${answer.id}`);
+		return answer;
 	}
 };
