@@ -30,6 +30,12 @@ export function formatDateTime(at: Date, tz: string): string {
 	return local(at, tz).toFormat('ccc d LLL, HH:mm');
 }
 
+/** As formatDateTime, with the year when it is not this year's: "Tue 1 Jun 2027, 10:00". */
+export function formatWhen(at: Date, tz: string, now = new Date()): string {
+	const l = local(at, tz);
+	return l.toFormat(l.year === local(now, tz).year ? 'ccc d LLL, HH:mm' : 'ccc d LLL yyyy, HH:mm');
+}
+
 export function formatTime(at: Date, tz: string): string {
 	return local(at, tz).toFormat('HH:mm');
 }

@@ -1,7 +1,5 @@
-import { error, fail } from '@sveltejs/kit';
+import { error } from '@sveltejs/kit';
 import { DateTime } from 'luxon';
-import { outageKinds } from '$lib/domain/bookings';
-import { fromLocal } from '$lib/domain/time';
 import { config } from '$lib/server/config';
 import { requireRole, requireUser } from '$lib/server/guard';
 import { endOutage, extendOutage, createOutage } from '$lib/server/services/outages';
@@ -12,8 +10,9 @@ import { boxOutages, getBox } from '$lib/server/services/boxes';
 import { attempt } from '$lib/server/services/errors';
 import { latestReadings, recordReading } from '$lib/server/services/atmosphere';
 import { documentsFor, mayManageDocuments } from '$lib/server/services/documents';
-import { readingFromForm } from '$lib/validation/readings';
-import { formId } from '$lib/server/forms';
+import { readingSchema } from '$lib/validation/readings';
+import { endOutageSchema, moveOutageSchema, outageSchema } from '$lib/validation/outages';
+import { runForm } from '$lib/server/forms';
 import type { Actions, PageServerLoad } from './$types';
 
 export const load: PageServerLoad = async (event) => {
@@ -43,7 +42,7 @@ export const load: PageServerLoad = async (event) => {
 		rates: { internal: box.rateInternal, external: box.rateExternal },
 		volumeL: box.volumeL,
 		description: box.description,
-		outages: await boxOutages(id),
+		outages: (await boxOutages(id)).map((o) => ({ ...o, active: o.endAt > new Date() })),
 		// Notes on readings are for the managers they were sent to.
 		readings: (await latestReadings(id, 8)).map((r) => ({
 			id: r.id,
@@ -70,86 +69,63 @@ function outageDefaults() {
 		startDate: start.toISODate()!,
 		startTime: start.toFormat('HH:mm'),
 		endDate: end.toISODate()!,
-		endTime: end.toFormat('HH:mm')
+		endTime: end.toFormat('HH:mm'),
+		kind: 'other'
 	};
 }
 
-type Values = Record<string, string>;
-
-function localInstant(values: Values, prefix: 'start' | 'end') {
-	return fromLocal(values[`${prefix}Date`] ?? '', values[`${prefix}Time`] ?? '', config.facilityTz);
-}
+const instants = {
+	start: ['startDate', 'startTime'],
+	end: ['endDate', 'endTime']
+} as const;
 
 export const actions: Actions = {
 	reading: async (event) => {
 		const actor = requireRole(event, 'member');
 		const boxId = idParam(event.params.id, 'The box');
-		const values = Object.fromEntries(await event.request.formData()) as Values;
-		const { reading, errors } = readingFromForm(values);
-		if (Object.keys(errors).length) return fail(400, { form: 'reading', values, errors });
-		const result = await attempt(() => recordReading(actor, boxId, reading));
-		if (!result.ok)
-			return fail(result.error.status, {
-				form: 'reading',
-				values,
-				errors: {},
-				message: result.error.message
-			});
-		return { form: 'reading', recorded: true, state: result.value.state };
+		return runForm(
+			event.request,
+			readingSchema,
+			async (reading) => ({
+				recorded: true,
+				state: (await recordReading(actor, boxId, reading)).state
+			}),
+			{ form: 'reading' }
+		);
 	},
 	outage: async (event) => {
 		const actor = requireRole(event, 'manager');
 		const boxId = idParam(event.params.id, 'The box');
-		const values = Object.fromEntries(await event.request.formData()) as Values;
-		const errors: Record<string, string> = {};
-		const start = localInstant(values, 'start');
-		const end = localInstant(values, 'end');
-		if (!start) errors.start = 'Enter a start date and time that exist.';
-		if (!end) errors.end = 'Enter an expected end date and time that exist.';
-		if (start && end && end <= start) errors.end = 'The expected end must be after the start.';
-		if (!outageKinds.includes(values.kind as (typeof outageKinds)[number]))
-			errors.kind = 'Choose a kind.';
-		const reason = (values.reason ?? '').trim();
-		if (reason.length < 3 || reason.length > 500)
-			errors.reason = 'Give a reason (3–500 characters); it goes to everyone affected.';
-		if (Object.keys(errors).length) return fail(400, { form: 'outage', values, errors });
-		const result = await attempt(() =>
-			createOutage(actor, boxId, {
-				start: start!,
-				end: end!,
-				kind: values.kind as (typeof outageKinds)[number],
-				reason
-			})
+		return runForm(
+			event.request,
+			outageSchema,
+			async (input) => ({
+				cancelled: (await createOutage(actor, boxId, input)).cancelledBookingIds.length
+			}),
+			{ form: 'outage', instants }
 		);
-		if (!result.ok)
-			return fail(result.error.status, {
-				form: 'outage',
-				values,
-				errors: {},
-				message: result.error.message
-			});
-		return { form: 'outage', cancelled: result.value.cancelledBookingIds.length };
 	},
 	endOutage: async (event) => {
 		const actor = requireRole(event, 'manager');
-		const id = formId((await event.request.formData()).get('outageId'));
-		const result = await attempt(() => endOutage(actor, id));
-		if (!result.ok)
-			return fail(result.error.status, { form: 'end', message: result.error.message });
-		return { form: 'end', ended: true };
+		return runForm(
+			event.request,
+			endOutageSchema,
+			async ({ outageId }) => {
+				await endOutage(actor, outageId);
+				return { ended: true };
+			},
+			{ form: 'end' }
+		);
 	},
 	extendOutage: async (event) => {
 		const actor = requireRole(event, 'manager');
-		const values = Object.fromEntries(await event.request.formData()) as Values;
-		const end = localInstant(values, 'end');
-		if (!end)
-			return fail(400, {
-				form: 'extend',
-				message: 'Enter an expected end date and time that exist.'
-			});
-		const result = await attempt(() => extendOutage(actor, formId(values.outageId), end));
-		if (!result.ok)
-			return fail(result.error.status, { form: 'extend', message: result.error.message });
-		return { form: 'extend', cancelled: result.value.cancelledBookingIds.length };
+		return runForm(
+			event.request,
+			moveOutageSchema,
+			async ({ outageId, end }) => ({
+				cancelled: (await extendOutage(actor, outageId, end)).cancelledBookingIds.length
+			}),
+			{ form: 'extend', instants: { end: instants.end } }
+		);
 	}
 };

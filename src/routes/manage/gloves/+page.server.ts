@@ -1,10 +1,7 @@
-import { fail } from '@sveltejs/kit';
-import { formId } from '$lib/server/forms';
+import { formId, runForm } from '$lib/server/forms';
 import { requireRole } from '$lib/server/guard';
-import { attempt } from '$lib/server/services/errors';
 import { addStockKind, listStock, updateStock } from '$lib/server/services/glove-stock';
-import { fieldErrors } from '$lib/validation/fields';
-import { fromForm, stockCountSchema, stockKindSchema } from '$lib/validation/glove-changes';
+import { stockCountSchema, stockKindSchema } from '$lib/validation/glove-changes';
 import type { Actions, PageServerLoad } from './$types';
 
 export const load: PageServerLoad = async (event) => {
@@ -15,42 +12,28 @@ export const load: PageServerLoad = async (event) => {
 export const actions: Actions = {
 	add: async (event) => {
 		const actor = requireRole(event, 'manager');
-		const values = fromForm(await event.request.formData());
-		const parsed = stockKindSchema.safeParse(values);
-		if (!parsed.success)
-			return fail(400, {
-				form: 'add',
-				values,
-				errors: fieldErrors(parsed.error),
-				message: 'Please correct the fields marked below.'
-			});
-		const result = await attempt(() => addStockKind(actor, parsed.data));
-		if (!result.ok)
-			return fail(result.error.status, {
-				form: 'add',
-				values,
-				errors: {},
-				message: result.error.message
-			});
-		return { form: 'add', added: true };
+		return runForm(
+			event.request,
+			stockKindSchema,
+			async (kind) => {
+				await addStockKind(actor, kind);
+				return { added: true };
+			},
+			{ form: 'add' }
+		);
 	},
 	count: async (event) => {
 		const actor = requireRole(event, 'manager');
-		const form = await event.request.formData();
+		const form = await event.request.clone().formData();
 		const id = formId(form.get('id'));
-		const values = fromForm(form);
-		delete values.id;
-		const parsed = stockCountSchema.safeParse(values);
-		if (!parsed.success)
-			return fail(400, {
-				form: `count-${id}`,
-				values,
-				errors: fieldErrors(parsed.error),
-				message: 'Please correct the counts.'
-			});
-		const result = await attempt(() => updateStock(actor, id, parsed.data));
-		if (!result.ok)
-			return fail(result.error.status, { form: `count-${id}`, message: result.error.message });
-		return { form: `count-${id}`, saved: true };
+		return runForm(
+			event.request,
+			stockCountSchema,
+			async (counts) => {
+				await updateStock(actor, id, counts);
+				return { saved: true };
+			},
+			{ form: `count-${id}`, omit: ['id'] }
+		);
 	}
 };

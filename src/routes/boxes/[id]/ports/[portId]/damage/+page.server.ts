@@ -3,14 +3,14 @@ import { z } from 'zod';
 import { damageLocations } from '$lib/domain/gloves';
 import { requireRole, requireUser } from '$lib/server/guard';
 import { idParam } from '$lib/server/params';
-import { attempt } from '$lib/server/services/errors';
+import { attempt, ServiceError } from '$lib/server/services/errors';
+import { runForm } from '$lib/server/forms';
 import { startGloveChange } from '$lib/server/services/glove-changes';
 import { portAndGlove, reportDamage } from '$lib/server/services/gloves';
 import { checkPhoto, put, remove } from '$lib/server/storage';
-import { fieldErrors } from '$lib/validation/fields';
 import type { Actions, PageServerLoad } from './$types';
 
-const reportSchema = z.object({
+const reportSchema = z.strictObject({
 	location: z.enum(damageLocations, { error: 'Where on the glove is the damage?' }),
 	hand: z.enum(['left', 'right'], { error: 'Which hand’s glove?' }),
 	holeSizeMm: z.coerce
@@ -39,37 +39,35 @@ export const actions: Actions = {
 			idParam(event.params.id, 'The box'),
 			idParam(event.params.portId, 'The port')
 		);
-		if (!glove) return fail(409, { message: 'No glove is recorded on this port.', errors: {} });
-		const form = await event.request.formData();
-		const values = Object.fromEntries([...form.entries()].filter(([k]) => k !== 'photo'));
-		const parsed = reportSchema.safeParse(values);
-		if (!parsed.success)
-			return fail(400, {
-				values,
-				errors: fieldErrors(parsed.error),
-				message: 'Please correct the fields marked below.'
-			});
-		let photoKey: string | undefined;
-		const photo = form.get('photo');
-		if (photo instanceof File && photo.size > 0) {
-			const checked = await checkPhoto(photo);
-			if (!checked.ok)
-				return fail(400, { values, errors: { photo: checked.message }, message: checked.message });
-			photoKey = await put('gloves', checked.bytes, checked.ext);
-		}
-		const result = await attempt(() =>
-			reportDamage(user, { gloveId: glove.id, ...parsed.data, photoKey })
+		if (!glove)
+			return fail(409, { values: {}, errors: {}, message: 'No glove is recorded on this port.' });
+		return runForm(
+			event.request,
+			reportSchema,
+			async (input, form) => {
+				const photo = form.get('photo');
+				let photoKey: string | undefined;
+				if (photo instanceof File && photo.size > 0) {
+					const checked = await checkPhoto(photo);
+					if (!checked.ok)
+						throw new ServiceError(400, checked.message, { fields: { photo: checked.message } });
+					photoKey = await put('gloves', checked.bytes, checked.ext);
+				}
+				try {
+					const { catastrophic } = await reportDamage(user, {
+						gloveId: glove.id,
+						...input,
+						photoKey
+					});
+					return { reported: true, catastrophic, holeSizeMm: input.holeSizeMm };
+				} catch (e) {
+					// Nothing points at the photo without its report.
+					if (photoKey) await remove(photoKey).catch(() => undefined);
+					throw e;
+				}
+			},
+			{ omit: ['photo'] }
 		);
-		if (!result.ok) {
-			// Nothing points at the photo without its report.
-			if (photoKey) await remove(photoKey).catch(() => undefined);
-			return fail(result.error.status, { values, errors: {}, message: result.error.message });
-		}
-		return {
-			reported: true,
-			catastrophic: result.value.catastrophic,
-			holeSizeMm: parsed.data.holeSizeMm
-		};
 	},
 	outageNow: async (event) => {
 		const actor = requireRole(event, 'manager');
