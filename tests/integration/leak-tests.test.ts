@@ -83,28 +83,29 @@ describe('leak tests', () => {
 		const boxId = await makeBox({ gloveChangeNeedsProof: true, requiredLeakClass: 2 });
 		const [left] = await fitGloves(boxId);
 		const manager = await signedIn(await makeUser('manager'));
-		const started = await manager.form(`/boxes/${boxId}?/gloveChange`, { portId: left.id });
-		const changeUrl = started.headers.get('location')!;
-		await manager.form(`${changeUrl}?/fitted`, {
-			material: 'butyl',
-			thicknessMm: '0.4',
-			size: '8',
-			hand: 'left'
+		const started = await manager.post(`/api/boxes/${boxId}/glove-changes`, { portId: left.id });
+		const { id } = await started.json();
+		const step = (body: Record<string, unknown>) =>
+			manager.post(`/api/glove-changes/${id}/steps`, body);
+		const complete = () => manager.post(`/api/glove-changes/${id}/complete`, {});
+		const reasons = async (r: Response) =>
+			((await errorOf(r)).details?.reasons as { code: string }[]).map((x) => x.code);
+		for (const key of ['port_sealed', 'orings_off', 'old_glove_removed']) await step({ step: key });
+		await step({
+			step: 'new_glove_fitted',
+			glove: { material: 'butyl', thicknessMm: 0.4, size: '8', hand: 'left' }
 		});
-		for (let i = 0; i < 3; i++) await manager.form(`${changeUrl}?/step`, { key: 'flush_cycle' });
-		// A reading in spec while the port is still covered proves nothing about the new glove.
+		// A reading in spec before the new glove is flushed proves nothing about it.
 		await manager.post(`/api/boxes/${boxId}/readings`, {
 			at: new Date(Date.now() - 5_000).toISOString(),
 			o2Ppm: 0.3,
 			h2oPpm: 0.3
 		});
-		const covered = await manager.form(`${changeUrl}?/complete`, {});
-		expect(covered.status).toBe(422);
-		expect(await covered.text()).toContain('log the cover');
-		await manager.form(`${changeUrl}?/step`, { key: 'cover_removed' });
-		const held = await manager.form(`${changeUrl}?/complete`, {});
+		for (let i = 0; i < 3; i++) await step({ step: 'flush_cycle' });
+		for (const key of ['orings_on', 'purge_started', 'cover_removed']) await step({ step: key });
+		const held = await complete();
 		expect(held.status).toBe(422);
-		expect(await held.text()).toContain('passing leak test or a reading under both warn levels');
+		expect(await reasons(held)).toEqual(['release_check_missing']);
 
 		// A reading above warn does not count; a failing test does not either.
 		await manager.post(`/api/boxes/${boxId}/readings`, { o2Ppm: 4, h2oPpm: 0.5 });
@@ -113,16 +114,17 @@ describe('leak tests', () => {
 			o2RisePpm: 5000,
 			minutes: 60
 		});
-		expect((await manager.form(`${changeUrl}?/complete`, {})).status).toBe(422);
+		const still = await complete();
+		expect(still.status).toBe(422);
+		expect(await reasons(still)).toEqual(['release_check_missing']);
 
 		await manager.post(`/api/boxes/${boxId}/leak-tests`, {
 			method: 'oxygen',
 			o2RisePpm: 100,
 			minutes: 60
 		});
-		expect((await manager.form(`${changeUrl}?/complete`, {})).status).toBe(200);
-		const changeId = Number(changeUrl.split('/').pop());
-		const [done] = await testDb().select().from(gloveChanges).where(eq(gloveChanges.id, changeId));
+		expect((await complete()).status).toBe(200);
+		const [done] = await testDb().select().from(gloveChanges).where(eq(gloveChanges.id, id));
 		expect(done.completedAt).not.toBeNull();
 	});
 });

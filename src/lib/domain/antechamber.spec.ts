@@ -89,6 +89,9 @@ describe('antechamberEstimate', () => {
 });
 
 describe('checkAntechamberInput', () => {
+	const messages = (i: Parameters<typeof checkAntechamberInput>[0]) =>
+		checkAntechamberInput(i).map((p) => `${p.field}: ${p.message}`);
+
 	it('accepts a usual transfer', () => {
 		expect(
 			checkAntechamberInput({
@@ -102,37 +105,70 @@ describe('checkAntechamberInput', () => {
 		).toEqual([]);
 	});
 
-	it('refuses zero or negative pressures, low at or above high, and cycles outside 0–50', () => {
-		expect(checkAntechamberInput({ lowPa: 0, highPa: -1, cycles: 51 })).toEqual([
-			'lowPa must be above zero (no pump reaches a perfect vacuum)',
-			'highPa must be above zero',
-			'cycles must be a whole number from 0 to 50'
+	it('refuses an evacuation below 0.1 Pa, a refill outside 1 kPa … 1 MPa, low at or above high, and cycles outside 0–50', () => {
+		expect(messages({ lowPa: 0, highPa: -1, cycles: 51 })).toEqual([
+			'lowPa: lowPa must be at least 0.1 Pa (0.001 mbar): no antechamber pump gets lower',
+			'highPa: highPa must be an absolute pressure from 1 kPa to 1 MPa (10 to 10 000 mbar)',
+			'cycles: cycles must be a whole number from 0 to 50'
 		]);
+		expect(checkAntechamberInput({ lowPa: 5e-324, highPa: 1e5 })[0].field).toBe('lowPa');
 		expect(checkAntechamberInput({ lowPa: 2000, highPa: 1000 })).toEqual([
-			'lowPa must be below the refill pressure'
+			{ field: 'lowPa', message: 'lowPa must be below the refill pressure' }
 		]);
 		expect(checkAntechamberInput({ lowPa: 1000, highPa: 1000 })).toEqual([
-			'lowPa must be below the refill pressure'
+			{ field: 'lowPa', message: 'lowPa must be below the refill pressure' }
 		]);
-		expect(checkAntechamberInput({ lowPa: 10, highPa: 2e6 })[0]).toMatch(/^highPa is implausibly/);
+		expect(checkAntechamberInput({ lowPa: 10, highPa: 2e6 })[0].message).toMatch(
+			/^highPa must be an absolute pressure/
+		);
 		expect(checkAntechamberInput({ lowPa: 10, highPa: 1e5, cycles: 2.5 })).toEqual([
-			'cycles must be a whole number from 0 to 50'
+			{ field: 'cycles', message: 'cycles must be a whole number from 0 to 50' }
+		]);
+		expect(checkAntechamberInput({ lowPa: 0.1, highPa: 1e6, cycles: 50 })).toEqual([]);
+	});
+
+	it('refuses a target at or below zero, at or above room air, or beyond 50 cycles, and half a pump-down', () => {
+		expect(checkAntechamberInput({ lowPa: 10, highPa: 1e5, targetPpm: 0 })).toEqual([
+			{ field: 'targetPpm', message: 'targetPpm must be above zero' }
+		]);
+		expect(
+			checkAntechamberInput({ lowPa: 10, highPa: 1e5, targetPpm: 209_460 })[0].message
+		).toMatch(/^targetPpm must be below room air/);
+		// Purging to half an atmosphere takes 18 cycles to 1 ppm; from 99 999 Pa, over a million.
+		expect(checkAntechamberInput({ lowPa: 50_000, highPa: 1e5, targetPpm: 1 })).toEqual([]);
+		expect(messages({ lowPa: 99_999, highPa: 1e5, targetPpm: 1 })).toEqual([
+			'targetPpm: targetPpm would take more than 50 cycles at these pressures: evacuate lower or aim higher'
+		]);
+		expect(checkAntechamberInput({ lowPa: 10, highPa: 1e5, volumeL: 40 })).toEqual([
+			{ field: 'pumpM3PerH', message: 'pumpM3PerH is needed with the volume for a pump-down time' }
+		]);
+		expect(messages({ lowPa: 10, highPa: 1e5, volumeL: 0, pumpM3PerH: -1 })).toEqual([
+			'volumeL: volumeL must be from 0.1 to 10000 L for an antechamber',
+			'pumpM3PerH: pumpM3PerH must be from 0.1 to 1000 m³/h for an antechamber pump'
+		]);
+		expect(messages({ lowPa: 10, highPa: 1e5, volumeL: 1e6, pumpM3PerH: 5e-324 })).toEqual([
+			'volumeL: volumeL must be from 0.1 to 10000 L for an antechamber',
+			'pumpM3PerH: pumpM3PerH must be from 0.1 to 1000 m³/h for an antechamber pump'
 		]);
 	});
 
-	it('refuses a target at or below zero or at or above room air, and half a pump-down', () => {
-		expect(checkAntechamberInput({ lowPa: 10, highPa: 1e5, targetPpm: 0 })).toEqual([
-			'targetPpm must be above zero'
-		]);
-		expect(checkAntechamberInput({ lowPa: 10, highPa: 1e5, targetPpm: 209_460 })[0]).toMatch(
-			/^targetPpm must be below room air/
-		);
-		expect(checkAntechamberInput({ lowPa: 10, highPa: 1e5, volumeL: 40 })).toEqual([
-			'pumpM3PerH is needed with the volume for a pump-down time'
-		]);
-		expect(checkAntechamberInput({ lowPa: 10, highPa: 1e5, volumeL: 0, pumpM3PerH: -1 })).toEqual([
-			'volumeL must be above zero',
-			'pumpM3PerH must be above zero'
-		]);
+	it('every accepted input at the ends of its bounds gives finite numbers', () => {
+		for (const [lowPa, highPa] of [
+			[0.1, 1e6],
+			[0.1, 1000],
+			[999.9, 1000]
+		])
+			for (const [volumeL, pumpM3PerH] of [
+				[0.1, 1000],
+				[10_000, 0.1]
+			]) {
+				const input = { lowPa, highPa, cycles: 50, volumeL, pumpM3PerH };
+				expect(checkAntechamberInput(input)).toEqual([]);
+				const r = antechamberEstimate(input);
+				expect(Number.isFinite(r.residualFraction)).toBe(true);
+				expect(Number.isFinite(r.pumpDownSeconds)).toBe(true);
+			}
+		const r = antechamberEstimate({ lowPa: 0.1, highPa: 1e6, targetPpm: 1e-6 });
+		expect(Number.isInteger(r.cyclesForTarget)).toBe(true);
 	});
 });

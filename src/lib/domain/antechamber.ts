@@ -5,12 +5,26 @@
 // See REFERENCES.md ("Purging and flushing").
 
 import { O2_FRACTION_AIR } from './flush';
+import { absolutePressureProblem, type Problem } from './inputs';
 
 /** Common practice: three evacuate/refill cycles is the usual minimum. */
 export const MIN_ANTECHAMBER_CYCLES = 3;
 export const MAX_CYCLES = 50;
-/** Above 10 bar is no antechamber refill. */
-export const MAX_REFILL_PRESSURE_PA = 1e6;
+/**
+ * The lowest evacuation pressure taken: 0.1 Pa (10⁻³ mbar), about the ultimate pressure of a
+ * two-stage rotary vane pump (from memory). An antechamber's pump gets nowhere near it in the
+ * minutes of a cycle, so anything lower is a unit slip.
+ */
+export const MIN_EVACUATION_PA = 0.1;
+/**
+ * Antechambers run from a litre or two (the small one) to a few hundred litres (the large one);
+ * 0.1 L to 10 m³ and pumps of 0.1 to 1000 m³/h leave room for any transfer chamber and still
+ * catch unit slips (m³ for L, L/s for m³/h). Bounds of plausibility, from memory.
+ */
+export const MIN_CHAMBER_VOLUME_L = 0.1;
+export const MAX_CHAMBER_VOLUME_L = 10_000;
+export const MIN_PUMP_M3_PER_H = 0.1;
+export const MAX_PUMP_M3_PER_H = 1000;
 
 /** ppm O2 in room air, the starting point of every antechamber transfer. */
 export const AIR_O2_PPM = O2_FRACTION_AIR * 1e6;
@@ -72,35 +86,65 @@ export type AntechamberInput = {
 	pumpM3PerH?: number;
 };
 
-const positive = (v: number | undefined) => v !== undefined && Number.isFinite(v) && v > 0;
+export type AntechamberField = keyof AntechamberInput;
 
-/** Readable problems, each starting with the field it is about; only given fields are checked. */
-export function checkAntechamberInput(i: AntechamberInput): string[] {
-	const problems: string[] = [];
-	if (!positive(i.lowPa))
-		problems.push('lowPa must be above zero (no pump reaches a perfect vacuum)');
-	if (!positive(i.highPa)) problems.push('highPa must be above zero');
-	else if (i.highPa > MAX_REFILL_PRESSURE_PA)
-		problems.push('highPa is implausibly high (above 1 000 000 Pa, 10 bar)');
-	if (positive(i.lowPa) && positive(i.highPa) && i.lowPa >= i.highPa)
-		problems.push('lowPa must be below the refill pressure');
+/** Every problem with the input; the optional fields are checked only when given. */
+export function checkAntechamberInput(i: AntechamberInput): Problem<AntechamberField>[] {
+	const problems: Problem<AntechamberField>[] = [];
+	const add = (field: AntechamberField, message: string) => problems.push({ field, message });
+
+	const lowOk = Number.isFinite(i.lowPa) && i.lowPa >= MIN_EVACUATION_PA;
+	if (!Number.isFinite(i.lowPa)) add('lowPa', 'lowPa must be a number of pascals');
+	else if (!lowOk)
+		add(
+			'lowPa',
+			`lowPa must be at least ${MIN_EVACUATION_PA} Pa (${MIN_EVACUATION_PA / 100} mbar): no antechamber pump gets lower`
+		);
+	const high = absolutePressureProblem('highPa', i.highPa);
+	if (high) problems.push(high);
+	else if (lowOk && i.lowPa >= i.highPa) add('lowPa', 'lowPa must be below the refill pressure');
+
 	if (
 		i.cycles !== undefined &&
 		(!Number.isInteger(i.cycles) || i.cycles < 0 || i.cycles > MAX_CYCLES)
 	)
-		problems.push(`cycles must be a whole number from 0 to ${MAX_CYCLES}`);
+		add('cycles', `cycles must be a whole number from 0 to ${MAX_CYCLES}`);
+
 	if (i.targetPpm !== undefined) {
-		if (!positive(i.targetPpm)) problems.push('targetPpm must be above zero');
+		if (!Number.isFinite(i.targetPpm)) add('targetPpm', 'targetPpm must be a number');
+		else if (!(i.targetPpm > 0)) add('targetPpm', 'targetPpm must be above zero');
 		else if (i.targetPpm >= AIR_O2_PPM)
-			problems.push(`targetPpm must be below room air’s ${AIR_O2_PPM.toFixed(0)} ppm O2`);
+			add('targetPpm', `targetPpm must be below room air’s ${AIR_O2_PPM.toFixed(0)} ppm O2`);
+		else if (lowOk && !high && i.lowPa < i.highPa) {
+			const { cycles } = cyclesForTarget(i.lowPa, i.highPa, i.targetPpm);
+			if (!(cycles <= MAX_CYCLES))
+				add(
+					'targetPpm',
+					`targetPpm would take more than ${MAX_CYCLES} cycles at these pressures: evacuate lower or aim higher`
+				);
+		}
 	}
-	if (i.volumeL !== undefined && !positive(i.volumeL)) problems.push('volumeL must be above zero');
-	if (i.pumpM3PerH !== undefined && !positive(i.pumpM3PerH))
-		problems.push('pumpM3PerH must be above zero');
+
+	if (i.volumeL !== undefined) {
+		if (!Number.isFinite(i.volumeL)) add('volumeL', 'volumeL must be a number of litres');
+		else if (i.volumeL < MIN_CHAMBER_VOLUME_L || i.volumeL > MAX_CHAMBER_VOLUME_L)
+			add(
+				'volumeL',
+				`volumeL must be from ${MIN_CHAMBER_VOLUME_L} to ${MAX_CHAMBER_VOLUME_L} L for an antechamber`
+			);
+	}
+	if (i.pumpM3PerH !== undefined) {
+		if (!Number.isFinite(i.pumpM3PerH)) add('pumpM3PerH', 'pumpM3PerH must be a number of m³/h');
+		else if (i.pumpM3PerH < MIN_PUMP_M3_PER_H || i.pumpM3PerH > MAX_PUMP_M3_PER_H)
+			add(
+				'pumpM3PerH',
+				`pumpM3PerH must be from ${MIN_PUMP_M3_PER_H} to ${MAX_PUMP_M3_PER_H} m³/h for an antechamber pump`
+			);
+	}
 	if (i.volumeL !== undefined && i.pumpM3PerH === undefined)
-		problems.push('pumpM3PerH is needed with the volume for a pump-down time');
+		add('pumpM3PerH', 'pumpM3PerH is needed with the volume for a pump-down time');
 	if (i.pumpM3PerH !== undefined && i.volumeL === undefined)
-		problems.push('volumeL is needed with the pump speed for a pump-down time');
+		add('volumeL', 'volumeL is needed with the pump speed for a pump-down time');
 	return problems;
 }
 

@@ -38,16 +38,46 @@ describe('flushEstimate', () => {
 });
 
 describe('checkFlushInput', () => {
+	const messages = (i: Parameters<typeof checkFlushInput>[0]) =>
+		checkFlushInput(i).map((p) => `${p.field}: ${p.message}`);
+
 	it('refuses impossible volumes and cycle counts', () => {
-		expect(
-			checkFlushInput({ boxVolumeL: 0, gloveVolumeL: 1, residualVolumeL: 2, cycles: -1 })
-		).toEqual([
-			'boxVolumeL must be above zero',
-			'residualVolumeL must be below gloveVolumeL',
-			'cycles must be a whole number from 0 to 50'
+		expect(messages({ boxVolumeL: 0, gloveVolumeL: 1, residualVolumeL: 2, cycles: -1 })).toEqual([
+			'boxVolumeL: boxVolumeL must be from 10 to 100000 L for a glove box',
+			'residualVolumeL: residualVolumeL must be below gloveVolumeL',
+			'cycles: cycles must be a whole number from 0 to 50'
 		]);
 		expect(
 			checkFlushInput({ boxVolumeL: 800, gloveVolumeL: 2, residualVolumeL: 0.2, cycles: 5 })
 		).toEqual([]);
+	});
+
+	it('refuses a glove larger than its box, and volumes that are no number or denormal', () => {
+		expect(
+			checkFlushInput({ boxVolumeL: 20, gloveVolumeL: 25, residualVolumeL: 1, cycles: 3 })
+		).toEqual([
+			{ field: 'gloveVolumeL', message: 'gloveVolumeL cannot be larger than the box (boxVolumeL)' }
+		]);
+		expect(
+			checkFlushInput({ boxVolumeL: 20, gloveVolumeL: 20, residualVolumeL: 1, cycles: 3 })
+		).toEqual([]);
+		expect(
+			messages({ boxVolumeL: Number.NaN, gloveVolumeL: 5e-324, residualVolumeL: -1, cycles: 3 })
+		).toEqual([
+			'boxVolumeL: boxVolumeL must be a number of litres',
+			'gloveVolumeL: gloveVolumeL must be at least 0.01 L',
+			'residualVolumeL: residualVolumeL cannot be negative'
+		]);
+	});
+
+	it('every accepted input at the ends of its bounds gives finite numbers', () => {
+		for (const boxVolumeL of [10, 100_000])
+			for (const gloveVolumeL of [0.01, 10])
+				for (const cycles of [0, 50]) {
+					const input = { boxVolumeL, gloveVolumeL, residualVolumeL: gloveVolumeL / 2, cycles };
+					expect(checkFlushInput(input)).toEqual([]);
+					const r = flushEstimate(input);
+					expect(Number.isFinite(r.o2InGlovePpm) && Number.isFinite(r.o2RiseInBoxPpm)).toBe(true);
+				}
 	});
 });

@@ -2,12 +2,25 @@
 // squeeze-and-refill cycles with box gas, and what opening the port then adds to the box.
 // Ideal-gas mixing; see REFERENCES.md ("Air and ideal gas", "Purging and flushing").
 
+import type { Problem } from './inputs';
+
 /** O2 mole fraction of dry air: U.S. Standard Atmosphere 1976, Table 3 (0.209476), rounded as the CRC Handbook gives it. */
 export const O2_FRACTION_AIR = 0.20946;
 
 /** Common practice: at least three squeeze-and-refill cycles before opening, better five. */
 export const MIN_FLUSH_CYCLES = 3;
 export const RECOMMENDED_FLUSH_CYCLES = 5;
+export const MAX_FLUSH_CYCLES = 50;
+
+/**
+ * A glove box holds about 0.5–1.2 m³ (REFERENCES.md, common practice); 10 L to 100 m³ takes any
+ * box or isolator line and still catches unit slips (m³ for L). A glove holds about 2 L; it
+ * cannot hold more gas than the box it opens into. Bounds of plausibility, not of physics.
+ */
+export const MIN_BOX_VOLUME_L = 10;
+export const MAX_BOX_VOLUME_L = 100_000;
+/** A glove's gas is measured to a few centilitres at best. */
+export const MIN_GLOVE_VOLUME_L = 0.01;
 
 export type FlushInput = {
 	boxVolumeL: number;
@@ -25,15 +38,43 @@ export type FlushResult = {
 	o2RiseInBoxPpm: number;
 };
 
-export function checkFlushInput(i: FlushInput): string[] {
-	const problems: string[] = [];
-	if (!(i.boxVolumeL > 0)) problems.push('boxVolumeL must be above zero');
-	if (!(i.gloveVolumeL > 0)) problems.push('gloveVolumeL must be above zero');
-	if (!(i.residualVolumeL >= 0)) problems.push('residualVolumeL cannot be negative');
-	if (i.residualVolumeL >= i.gloveVolumeL)
-		problems.push('residualVolumeL must be below gloveVolumeL');
-	if (!Number.isInteger(i.cycles) || i.cycles < 0 || i.cycles > 50)
-		problems.push('cycles must be a whole number from 0 to 50');
+export type FlushField = keyof FlushInput;
+
+/** The problem with a glove box's volume, if any (also the leak flow's volume on /calc). */
+export function boxVolumeProblem<F extends string>(field: F, volumeL: number): Problem<F> | null {
+	if (!Number.isFinite(volumeL)) return { field, message: `${field} must be a number of litres` };
+	if (volumeL < MIN_BOX_VOLUME_L || volumeL > MAX_BOX_VOLUME_L)
+		return {
+			field,
+			message: `${field} must be from ${MIN_BOX_VOLUME_L} to ${MAX_BOX_VOLUME_L} L for a glove box`
+		};
+	return null;
+}
+
+/** Every problem with the input: volumes in the bounds above, the glove inside its box. */
+export function checkFlushInput(i: FlushInput): Problem<FlushField>[] {
+	const problems: Problem<FlushField>[] = [];
+	const add = (field: FlushField, message: string) => problems.push({ field, message });
+
+	const box = boxVolumeProblem('boxVolumeL', i.boxVolumeL);
+	if (box) problems.push(box);
+	const boxOk = !box;
+
+	const gloveOk = Number.isFinite(i.gloveVolumeL) && i.gloveVolumeL >= MIN_GLOVE_VOLUME_L;
+	if (!Number.isFinite(i.gloveVolumeL))
+		add('gloveVolumeL', 'gloveVolumeL must be a number of litres');
+	else if (!gloveOk) add('gloveVolumeL', `gloveVolumeL must be at least ${MIN_GLOVE_VOLUME_L} L`);
+	else if (boxOk && i.gloveVolumeL > i.boxVolumeL)
+		add('gloveVolumeL', 'gloveVolumeL cannot be larger than the box (boxVolumeL)');
+
+	if (!Number.isFinite(i.residualVolumeL))
+		add('residualVolumeL', 'residualVolumeL must be a number of litres');
+	else if (i.residualVolumeL < 0) add('residualVolumeL', 'residualVolumeL cannot be negative');
+	else if (gloveOk && i.residualVolumeL >= i.gloveVolumeL)
+		add('residualVolumeL', 'residualVolumeL must be below gloveVolumeL');
+
+	if (!Number.isInteger(i.cycles) || i.cycles < 0 || i.cycles > MAX_FLUSH_CYCLES)
+		add('cycles', `cycles must be a whole number from 0 to ${MAX_FLUSH_CYCLES}`);
 	return problems;
 }
 

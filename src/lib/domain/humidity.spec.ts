@@ -91,33 +91,76 @@ describe('frost point ↔ ppmv at 1 atm (REFERENCES.md, ppmv = 10^6 e_i / P)', (
 });
 
 describe('checkHumidityInput', () => {
+	const messages = (i: Parameters<typeof checkHumidityInput>[0]) =>
+		checkHumidityInput(i).map((p) => `${p.field}: ${p.message}`);
+
 	it('accepts the usual range and refuses frost points outside −120 °C … 0.01 °C', () => {
 		expect(checkHumidityInput({ frostPointC: -76 })).toEqual([]);
 		expect(checkHumidityInput({ frostPointC: 0.01 })).toEqual([]);
 		expect(checkHumidityInput({ frostPointC: -120 })).toEqual([]);
 		expect(checkHumidityInput({ frostPointC: -121 })).toEqual([
-			'frostPointC must be at or above -120 °C'
+			{ field: 'frostPointC', message: 'frostPointC must be at or above -120 °C' }
 		]);
-		expect(checkHumidityInput({ frostPointC: 5 })[0]).toMatch(/^frostPointC must be at or below/);
+		expect(checkHumidityInput({ frostPointC: 5 })[0].message).toMatch(
+			/^frostPointC must be at or below/
+		);
 	});
 
 	it('refuses ppmv at or below zero, or outside the frost-point range at that pressure', () => {
 		expect(checkHumidityInput({ ppmv: 1 })).toEqual([]);
-		expect(checkHumidityInput({ ppmv: 0 })).toEqual(['ppmv must be above zero']);
-		expect(checkHumidityInput({ ppmv: -3 })).toEqual(['ppmv must be above zero']);
-		expect(checkHumidityInput({ ppmv: 1e-6 })[0]).toMatch(/^ppmv must be at least/);
+		expect(checkHumidityInput({ ppmv: 0 })).toEqual([
+			{ field: 'ppmv', message: 'ppmv must be above zero' }
+		]);
+		expect(checkHumidityInput({ ppmv: -3 })).toEqual([
+			{ field: 'ppmv', message: 'ppmv must be above zero' }
+		]);
+		expect(checkHumidityInput({ ppmv: 1e-6 })[0].message).toMatch(/^ppmv must be at least/);
 		// 0.01 °C over ice is 6036.6 ppmv at 1 atm.
 		expect(checkHumidityInput({ ppmv: 6000 })).toEqual([]);
-		expect(checkHumidityInput({ ppmv: 7000 })[0]).toMatch(/^ppmv must be at most 6037/);
+		expect(checkHumidityInput({ ppmv: 7000 })[0].message).toMatch(/^ppmv must be at most 6037/);
 	});
 
-	it('refuses pressures at or below zero and above 10 bar, and an empty input', () => {
+	it('refuses absolute pressures outside 1 kPa … 1 MPa, and an empty input', () => {
 		expect(checkHumidityInput({ ppmv: 1, pressurePa: 0 })).toEqual([
-			'pressurePa must be an absolute pressure above zero'
+			{
+				field: 'pressurePa',
+				message: 'pressurePa must be an absolute pressure from 1 kPa to 1 MPa (10 to 10 000 mbar)'
+			}
 		]);
-		expect(checkHumidityInput({ frostPointC: -70, pressurePa: 2e6 })[0]).toMatch(
-			/^pressurePa is implausibly high/
-		);
-		expect(checkHumidityInput({})).toEqual(['frostPointC or ppmv is needed']);
+		expect(messages({ frostPointC: -70, pressurePa: 2e6 })).toEqual([
+			'pressurePa: pressurePa must be an absolute pressure from 1 kPa to 1 MPa (10 to 10 000 mbar)'
+		]);
+		expect(checkHumidityInput({ frostPointC: -70, pressurePa: 1000 })).toEqual([]);
+		expect(checkHumidityInput({ frostPointC: -70, pressurePa: 1e6 })).toEqual([]);
+		expect(checkHumidityInput({ frostPointC: -70, pressurePa: 999 })[0].field).toBe('pressurePa');
+		expect(checkHumidityInput({})).toEqual([
+			{ field: 'frostPointC', message: 'frostPointC or ppmv is needed' }
+		]);
+	});
+
+	it('refuses a frost point whose vapour pressure is above the gas pressure (more than 100 % water)', () => {
+		// Over ice at 0 °C, e_i = 611.15 Pa (Murphy & Koop 2005, eq. 7): above a 500 Pa gas.
+		expect(ppmvFromFrostPoint(0, 500)).toBeGreaterThan(1e6);
+		const problems = checkHumidityInput({ frostPointC: 0, pressurePa: 500 });
+		expect(problems.map((p) => p.field)).toEqual(['pressurePa', 'frostPointC']);
+		expect(problems[1].message).toMatch(/^frostPointC is impossible at this pressure/);
+		// Within the pressure bounds the most water is 611.657 / 1000: 61 %, never over 100 %.
+		expect(checkHumidityInput({ frostPointC: 0.01, pressurePa: 1000 })).toEqual([]);
+		expect(humidity({ frostPointC: 0.01, pressurePa: 1000 }).ppmv).toBeCloseTo(611_657, -1);
+	});
+
+	it('every accepted input at the ends of its bounds gives finite numbers', () => {
+		for (const pressurePa of [1000, 101_325, 1e6]) {
+			for (const frostPointC of [-120, -76, 0.01]) {
+				expect(checkHumidityInput({ frostPointC, pressurePa })).toEqual([]);
+				const r = humidity({ frostPointC, pressurePa });
+				expect(Number.isFinite(r.ppmv) && r.ppmv > 0).toBe(true);
+			}
+			for (const f of [-120, 0.01]) {
+				const ppmv = ppmvFromFrostPoint(f, pressurePa);
+				expect(checkHumidityInput({ ppmv, pressurePa })).toEqual([]);
+				expect(humidity({ ppmv, pressurePa }).frostPointC).toBeCloseTo(f, 6);
+			}
+		}
 	});
 });

@@ -4,16 +4,16 @@
 // eq. 7; see REFERENCES.md ("Water vapour"). The water enhancement factor (≈ 1.0047 at 1 atm,
 // WMO-No. 8) is left out, as REFERENCES.md does: it shifts ppmv by about 0.5 %.
 
+import { absolutePressureProblem, KELVIN_OFFSET, type Problem } from './inputs';
+
 export const STANDARD_PRESSURE_PA = 101_325;
 
 /** Eq. 7 holds above 110 K; −120 °C keeps well inside it and below any box hygrometer's range. */
 export const MIN_FROST_POINT_C = -120;
 /** The triple point of water (273.16 K): above it the condensate is liquid, not frost. */
 export const MAX_FROST_POINT_C = 0.01;
-/** Above 10 bar the ideal-gas mole fraction (and a glove box) stop making sense. */
-export const MAX_PRESSURE_PA = 1e6;
 
-const KELVIN = 273.15;
+const KELVIN = KELVIN_OFFSET;
 
 /** Saturation vapour pressure over ice, Pa, at temperature `tK` (Murphy & Koop 2005, eq. 7). */
 export function iceSaturationPressurePa(tK: number): number {
@@ -70,44 +70,58 @@ export type HumidityResult = { frostPointC: number; ppmv: number };
 
 const fmt = (v: number) => (v >= 100 ? v.toFixed(0) : v >= 1 ? v.toFixed(2) : v.toPrecision(3));
 
+export type HumidityField = keyof HumidityInput;
+
 /**
- * Readable problems, each starting with the field it is about. Checks the pressure and
- * whichever of frostPointC and ppmv is given (frostPointC when both are).
+ * Every problem with the input: the gas pressure (absolute, 1 kPa to 1 MPa, one atmosphere
+ * when not given) and whichever of frostPointC and ppmv is given (frostPointC when both are).
  */
-export function checkHumidityInput(i: HumidityInput): string[] {
-	const problems: string[] = [];
+export function checkHumidityInput(i: HumidityInput): Problem<HumidityField>[] {
+	const problems: Problem<HumidityField>[] = [];
 	const pressure = i.pressurePa ?? STANDARD_PRESSURE_PA;
-	const pressureOk = Number.isFinite(pressure) && pressure > 0 && pressure <= MAX_PRESSURE_PA;
-	if (!(Number.isFinite(pressure) && pressure > 0))
-		problems.push('pressurePa must be an absolute pressure above zero');
-	else if (pressure > MAX_PRESSURE_PA)
-		problems.push('pressurePa is implausibly high (above 1 000 000 Pa, 10 bar)');
+	const pressureProblem = absolutePressureProblem('pressurePa', pressure);
+	if (pressureProblem) problems.push(pressureProblem);
+	// Out of bounds but a pressure all the same: enough to say whether the water fits in it.
+	const usable = Number.isFinite(pressure) && pressure > 0;
 
 	if (i.frostPointC !== undefined) {
-		if (!Number.isFinite(i.frostPointC)) problems.push('frostPointC must be a number');
+		const field = 'frostPointC';
+		if (!Number.isFinite(i.frostPointC))
+			problems.push({ field, message: 'frostPointC must be a number' });
 		else if (i.frostPointC < MIN_FROST_POINT_C)
-			problems.push(`frostPointC must be at or above ${MIN_FROST_POINT_C} °C`);
+			problems.push({ field, message: `frostPointC must be at or above ${MIN_FROST_POINT_C} °C` });
 		else if (i.frostPointC > MAX_FROST_POINT_C)
-			problems.push(
-				`frostPointC must be at or below ${MAX_FROST_POINT_C} °C (over ice; above it, a dew point)`
-			);
+			problems.push({
+				field,
+				message: `frostPointC must be at or below ${MAX_FROST_POINT_C} °C (over ice; above it, a dew point)`
+			});
+		else if (usable && ppmvFromFrostPoint(i.frostPointC, pressure) >= 1e6)
+			problems.push({
+				field,
+				message: `frostPointC is impossible at this pressure: water's vapour pressure at that frost point (${fmt(iceSaturationPressurePa(i.frostPointC + KELVIN))} Pa) is above the gas pressure, more than 100 % water`
+			});
 	} else if (i.ppmv !== undefined) {
-		if (!(Number.isFinite(i.ppmv) && i.ppmv > 0)) problems.push('ppmv must be above zero');
-		else if (i.ppmv >= 1e6) problems.push('ppmv must be below 1 000 000 (all water)');
-		else if (pressureOk) {
+		const field = 'ppmv';
+		if (!Number.isFinite(i.ppmv)) problems.push({ field, message: 'ppmv must be a number' });
+		else if (!(i.ppmv > 0)) problems.push({ field, message: 'ppmv must be above zero' });
+		else if (i.ppmv >= 1e6)
+			problems.push({ field, message: 'ppmv must be below 1 000 000 (all water)' });
+		else if (!pressureProblem) {
 			const low = ppmvFromFrostPoint(MIN_FROST_POINT_C, pressure);
 			const high = ppmvFromFrostPoint(MAX_FROST_POINT_C, pressure);
 			if (i.ppmv < low)
-				problems.push(
-					`ppmv must be at least ${fmt(low)} at this pressure (a frost point of ${MIN_FROST_POINT_C} °C)`
-				);
+				problems.push({
+					field,
+					message: `ppmv must be at least ${fmt(low)} at this pressure (a frost point of ${MIN_FROST_POINT_C} °C)`
+				});
 			else if (i.ppmv > high)
-				problems.push(
-					`ppmv must be at most ${fmt(high)} at this pressure (a frost point of ${MAX_FROST_POINT_C} °C)`
-				);
+				problems.push({
+					field,
+					message: `ppmv must be at most ${fmt(high)} at this pressure (a frost point of ${MAX_FROST_POINT_C} °C)`
+				});
 		}
 	} else {
-		problems.push('frostPointC or ppmv is needed');
+		problems.push({ field: 'frostPointC', message: 'frostPointC or ppmv is needed' });
 	}
 	return problems;
 }

@@ -1,19 +1,8 @@
-// Leak tests saved against a box, with their inputs, result, class and pass/fail.
+// Leak tests saved against a box, with their inputs, result, class and pass/fail. What a test
+// amounts to is decided in domain/leak.ts; this module fetches the box's class and stores.
 import { and, desc, eq, gte, lt } from 'drizzle-orm';
-import {
-	checkGaugeInput,
-	checkOxygenInput,
-	checkPressureInput,
-	isoClass,
-	leakRateByOxygen,
-	leakRateByPressure,
-	meetsClass,
-	pressureInputFromGauge,
-	type GaugeInput,
-	type IsoClass,
-	type OxygenInput,
-	type PressureInput
-} from '$lib/domain/leak';
+import { fieldMessages } from '$lib/domain/inputs';
+import { checkLeakTest, judgeLeakTest, type IsoClass, type LeakTestInput } from '$lib/domain/leak';
 import { hasRole } from '$lib/domain/roles';
 import { db, type Transaction } from '../db';
 import type { Database } from '../db/connect';
@@ -23,60 +12,7 @@ import { audit } from './audit';
 import { forbidden, notFound, ServiceError } from './errors';
 import { transaction } from '../db/transaction';
 
-export type LeakTestInput =
-	| ({ method: 'oxygen' } & OxygenInput)
-	| ({ method: 'pressure' } & PressureInput)
-	| ({ method: 'gauge' } & GaugeInput);
-
-/** Field name → message, from the domain's "field message" problems. */
-const asFields = (problems: string[]) =>
-	Object.fromEntries(problems.map((p) => [p.split(' ')[0], p]));
-
-/** The hourly leak rate and the inputs worth keeping, or a 400 naming the bad fields. */
-export function evaluate(input: LeakTestInput): {
-	method: 'oxygen' | 'pressure';
-	rate: number;
-	inputs: Record<string, number>;
-} {
-	if (input.method === 'oxygen') {
-		const problems = checkOxygenInput(input);
-		if (problems.length)
-			throw new ServiceError(400, 'Those readings cannot be.', { fields: asFields(problems) });
-		return {
-			method: 'oxygen' as const,
-			rate: leakRateByOxygen(input),
-			inputs: { o2RisePpm: input.o2RisePpm, minutes: input.minutes }
-		};
-	}
-	const gauge = input.method === 'gauge' ? input : null;
-	if (gauge) {
-		const problems = checkGaugeInput(gauge);
-		if (problems.length)
-			throw new ServiceError(400, 'Those readings cannot be.', { fields: asFields(problems) });
-	}
-	const absolute: PressureInput = gauge ? pressureInputFromGauge(gauge) : (input as PressureInput);
-	const problems = checkPressureInput(absolute);
-	if (problems.length)
-		throw new ServiceError(400, 'Those readings cannot be.', { fields: asFields(problems) });
-	const { p1Pa, p2Pa, t1K, t2K, hours } = absolute;
-	return {
-		method: 'pressure' as const,
-		rate: leakRateByPressure(absolute),
-		inputs: {
-			p1Pa,
-			p2Pa,
-			t1K,
-			t2K,
-			hours,
-			...(gauge && {
-				gauge1Pa: gauge.gauge1Pa,
-				gauge2Pa: gauge.gauge2Pa,
-				barometric1Pa: gauge.barometric1Pa,
-				barometric2Pa: gauge.barometric2Pa
-			})
-		}
-	};
-}
+export type { LeakTestInput };
 
 export async function recordLeakTest(
 	actor: Actor,
@@ -85,22 +21,24 @@ export async function recordLeakTest(
 	now = new Date()
 ) {
 	if (!hasRole(actor.role, 'manager')) throw forbidden('Only a manager records leak tests.');
-	const result = evaluate(input);
+	const problems = checkLeakTest(input);
+	if (problems.length)
+		throw new ServiceError(400, 'Those readings cannot be.', { fields: fieldMessages(problems) });
 	return transaction(async (tx) => {
 		const [box] = await tx
 			.select({ id: boxes.id, requiredLeakClass: boxes.requiredLeakClass })
 			.from(boxes)
 			.where(eq(boxes.id, boxId));
 		if (!box) throw notFound('The box');
-		const required = box.requiredLeakClass as IsoClass;
+		const result = judgeLeakTest(input, box.requiredLeakClass as IsoClass);
 		const row = {
 			boxId,
 			method: result.method,
 			inputs: result.inputs,
-			hourlyLeakRate: result.rate,
-			isoClass: isoClass(result.rate),
-			requiredClass: required,
-			passed: meetsClass(result.rate, required),
+			hourlyLeakRate: result.hourlyLeakRate,
+			isoClass: result.isoClass,
+			requiredClass: result.requiredClass,
+			passed: result.passed,
 			note: input.note?.trim() || null,
 			testedAt: now,
 			testedBy: actor.id
@@ -111,7 +49,12 @@ export async function recordLeakTest(
 			action: 'leak_test.recorded',
 			entity: 'box',
 			entityId: boxId,
-			details: { leakTestId: id, rate: result.rate, isoClass: row.isoClass, passed: row.passed }
+			details: {
+				leakTestId: id,
+				rate: result.hourlyLeakRate,
+				isoClass: row.isoClass,
+				passed: row.passed
+			}
 		});
 		return { id, ...row };
 	});
