@@ -2,6 +2,7 @@ import { documentFileName } from '$lib/domain/documents';
 import { errorResponse } from '$lib/server/http';
 import { openDocument } from '$lib/server/services/documents';
 import { attempt } from '$lib/server/services/errors';
+import { idParam } from '$lib/server/params';
 import type { RequestHandler } from './$types';
 
 // An SOP for anyone signed in. The link is opened outside /api/, so this route answers its
@@ -9,9 +10,7 @@ import type { RequestHandler } from './$types';
 export const GET: RequestHandler = async (event) => {
 	const user = event.locals.user;
 	if (!user) return errorResponse(401, 'Sign in first.', 'unauthenticated');
-	const id = /^\d{1,10}$/.test(event.params.id) ? Number(event.params.id) : 0;
-	if (!Number.isSafeInteger(id) || id <= 0 || id > 2_147_483_647)
-		return errorResponse(404, 'The document was not found.');
+	const id = idParam(event.params.id, 'The document');
 	const result = await attempt(() => openDocument(user, id));
 	if (!result.ok)
 		return errorResponse(

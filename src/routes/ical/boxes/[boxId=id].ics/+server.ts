@@ -2,6 +2,7 @@ import { feedResponse, noFeed } from '$lib/server/feed-response';
 import { fail } from '$lib/server/http';
 import { feedRetryAfter } from '$lib/server/rate-limit';
 import { boxFeed, userForToken } from '$lib/server/services/feeds';
+import { idParam } from '$lib/server/params';
 import type { RequestHandler } from './$types';
 
 // Any active person may see any box's schedule, so a valid token is enough.
@@ -19,8 +20,8 @@ export const GET: RequestHandler = async ({
 		fail(429, 'Too many requests for this feed; calendar clients need far fewer.');
 	}
 	const user = await userForToken(token);
-	const boxId = /^\d{1,10}$/.test(params.boxId) ? Number(params.boxId) : 0;
-	if (!user || !boxId) noFeed();
+	const boxId = idParam(params.boxId);
+	if (!user) noFeed();
 	const feed = await boxFeed(boxId);
 	if (!feed) noFeed();
 	return feedResponse(request, feed, `box-${boxId}.ics`);
