@@ -1,7 +1,8 @@
-import type { Handle, HandleServerError } from '@sveltejs/kit';
+import type { Handle, HandleServerError, ServerInit } from '@sveltejs/kit';
 import { sequence } from '@sveltejs/kit/hooks';
 import { building } from '$app/environment';
 import { readSession } from '$lib/server/auth';
+import { config } from '$lib/server/config';
 import { pool } from '$lib/server/db';
 import { shapeApiError } from '$lib/server/http';
 import { startWorker, stopWorker } from '$lib/server/mail/worker';
@@ -37,13 +38,19 @@ export const handleError: HandleServerError = ({ error, event, status, message }
 	};
 };
 
-if (!building) {
-	// Every app process drains the outbox; OUTBOX_WORKER=off leaves it to others.
-	if (process.env.OUTBOX_WORKER !== 'off') startWorker();
-	if (process.env.SCHEDULER !== 'off') startScheduler();
+/**
+ * Once per process, before the first request; not while building (the build runs this hook
+ * when it prerenders). Importing config above has already refused any bad setting.
+ */
+export const init: ServerInit = () => {
+	if (building) return;
+	// Every app process drains the outbox and runs the periodic jobs; OUTBOX_WORKER=off and
+	// SCHEDULER=off leave them to other processes.
+	if (config.outboxWorker) startWorker();
+	if (config.scheduler) startScheduler();
 	process.on('sveltekit:shutdown', () => {
 		stopWorker();
 		stopScheduler();
 		void pool.end();
 	});
-}
+};

@@ -58,8 +58,8 @@ export async function clearFailedSignIns(email: string, address: string) {
 }
 
 // Feeds: calendar clients poll every few minutes; these limits only stop abuse.
-const feedPerToken = limiter('feed_token', Number(process.env.FEED_LIMIT_TOKEN ?? 60), 60);
-const feedPerAddress = limiter('feed_address', Number(process.env.FEED_LIMIT_ADDRESS ?? 300), 60);
+const feedPerToken = limiter('feed_token', config.feedLimitPerToken, 60);
+const feedPerAddress = limiter('feed_address', config.feedLimitPerAddress, 60);
 
 /** Seconds to wait before the next feed request, or 0. The token is keyed by its hash. */
 export async function feedRetryAfter(token: string, address: string): Promise<number> {

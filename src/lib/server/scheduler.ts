@@ -1,5 +1,6 @@
 // Periodic jobs every app process runs: maintenance falling due, no-shows.
 // Each job is safe to run from several processes at once (row locks and dedupe keys).
+import { config } from './config';
 import { notifyDueTasks } from './services/maintenance';
 import { markNoShows } from './services/no-shows';
 
@@ -19,9 +20,10 @@ async function tick() {
 			console.error(`[boxwright] scheduler: ${job.name}:`, e);
 		}
 	}
-	if (!stopped) timer = setTimeout(tick, Number(process.env.SCHEDULER_POLL_MS ?? 60_000));
+	if (!stopped) timer = setTimeout(tick, config.schedulerPollMs);
 }
 
+/** Started by the server's `init` hook (hooks.server.ts), unless SCHEDULER=off. */
 export function startScheduler() {
 	stopped = false;
 	timer = setTimeout(tick, 1_000);

@@ -1,8 +1,9 @@
 // Uploaded files (damage photos, PDF documents). Local disk under
 // `${BOXWRIGHT_DATA_DIR ?? '.data'}/uploads` by default; any S3-compatible store when S3_BUCKET
 // is set (S3_ENDPOINT, S3_REGION, S3_ACCESS_KEY_ID, S3_SECRET_ACCESS_KEY, S3_FORCE_PATH_STYLE:
-// see .env.example), so several app processes can share the uploads. Settings are read at each
-// call, which lets tests switch backends; the S3 client is made once per set of settings.
+// see .env.example), so several app processes can share the uploads. Settings come from
+// `config.storage()` at each call, which lets tests switch backends; the S3 client is made
+// once per set of settings.
 import { mkdir, readFile, rm, writeFile } from 'node:fs/promises';
 import { randomBytes } from 'node:crypto';
 import { dirname, join, resolve } from 'node:path';
@@ -14,6 +15,7 @@ import {
 	S3ServiceException
 } from '@aws-sdk/client-s3';
 import { MAX_DOCUMENT_BYTES } from '../domain/documents';
+import { config, type StorageSettings } from './config';
 
 export const MAX_PHOTO_BYTES = 5 * 1024 * 1024;
 // Defined beside the documents' other rules so the upload form can check it before sending.
@@ -86,8 +88,8 @@ interface Backend {
 	delete(key: string): Promise<void>;
 }
 
-function localBackend(): Backend {
-	const root = resolve(process.env.BOXWRIGHT_DATA_DIR ?? '.data', 'uploads');
+function localBackend(dataDir: string): Backend {
+	const root = resolve(dataDir, 'uploads');
 	return {
 		async write(key, bytes) {
 			const path = join(root, key);
@@ -110,16 +112,13 @@ function localBackend(): Backend {
 
 let s3: { settings: string; client: S3Client } | null = null;
 
-function s3Client(): S3Client {
-	const endpoint = process.env.S3_ENDPOINT || undefined;
-	const pathStyle = process.env.S3_FORCE_PATH_STYLE;
-	const accessKeyId = process.env.S3_ACCESS_KEY_ID;
-	const secretAccessKey = process.env.S3_SECRET_ACCESS_KEY;
+function s3Client(settings: StorageSettings): S3Client {
+	const { s3AccessKeyId: accessKeyId, s3SecretAccessKey: secretAccessKey } = settings;
 	const options = {
-		region: process.env.S3_REGION || 'us-east-1',
-		endpoint,
+		region: settings.s3Region,
+		endpoint: settings.s3Endpoint,
 		// MinIO and most self-hosted stores serve buckets as paths, not as subdomains.
-		forcePathStyle: pathStyle ? /^(1|true|yes)$/i.test(pathStyle) : endpoint !== undefined,
+		forcePathStyle: settings.s3ForcePathStyle,
 		// Without keys the SDK's own chain applies (AWS_* variables, instance or task roles).
 		credentials: accessKeyId && secretAccessKey ? { accessKeyId, secretAccessKey } : undefined,
 		// Since SDK 3.729 uploads carry a CRC32 by default (a streamed body goes aws-chunked with
@@ -128,16 +127,16 @@ function s3Client(): S3Client {
 		requestChecksumCalculation: 'WHEN_REQUIRED',
 		responseChecksumValidation: 'WHEN_REQUIRED'
 	} as const;
-	const settings = JSON.stringify(options);
-	if (s3?.settings !== settings) {
+	const key = JSON.stringify(options);
+	if (s3?.settings !== key) {
 		s3?.client.destroy();
-		s3 = { settings, client: new S3Client(options) };
+		s3 = { settings: key, client: new S3Client(options) };
 	}
 	return s3.client;
 }
 
-function s3Backend(bucket: string): Backend {
-	const client = s3Client();
+function s3Backend(bucket: string, settings: StorageSettings): Backend {
+	const client = s3Client(settings);
 	return {
 		async write(key, bytes, type) {
 			await client.send(
@@ -161,8 +160,10 @@ function s3Backend(bucket: string): Backend {
 }
 
 function backend(): Backend {
-	const bucket = process.env.S3_BUCKET;
-	return bucket ? s3Backend(bucket) : localBackend();
+	const settings = config.storage();
+	return settings.s3Bucket
+		? s3Backend(settings.s3Bucket, settings)
+		: localBackend(settings.dataDir);
 }
 
 /** Stores bytes under a fresh random key in `folder`; returns the key. */

@@ -1,7 +1,7 @@
 // The box row is the lock everything that changes a box's time or state takes first
 // (bookings, outages, readings, box edits), so those changes are serialised per box.
 import { eq } from 'drizzle-orm';
-import { ServiceError } from '../services/errors';
+import { ServiceError } from '../errors';
 import type { Transaction } from './index';
 import { boxes, type Box } from './schema';
 

@@ -24,10 +24,6 @@ function html(paragraphs: string[]): string {
 		.join('')}</body></html>`;
 }
 
-function origin(): string {
-	return (process.env.ORIGIN ?? `http://localhost:${process.env.PORT ?? 3000}`).replace(/\/$/, '');
-}
-
 type Person = { name: string };
 
 export function bookingCancelled(
@@ -37,7 +33,7 @@ export function bookingCancelled(
 	alternatives: { start: Date; end: Date; boxName: string }[] = []
 ): Message {
 	const when = formatRange(booking.startAt, booking.endAt, config.facilityTz);
-	const rebook = `${origin()}/bookings`;
+	const rebook = `${config.origin}/bookings`;
 	const lines = [
 		`Hello ${person.name},`,
 		`your booking of ${booking.boxName} (room ${booking.room}) on ${when} has been cancelled.`,
@@ -87,12 +83,12 @@ export function bookingConfirmed(booking: IcsBooking, person: Person): Message {
 		text: [
 			`Hello ${person.name},`,
 			`you have ${booking.boxName} (room ${booking.room}) on ${when} for: ${booking.purpose}.`,
-			`Your bookings: ${origin()}/bookings`
+			`Your bookings: ${config.origin}/bookings`
 		].join('\n'),
 		html: html([
 			`Hello ${escape(person.name)},`,
 			`you have <strong>${escape(booking.boxName)}</strong> (room ${escape(booking.room)}) on <strong>${escape(when)}</strong> for: ${escape(booking.purpose)}.`,
-			`<a href="${escape(origin())}/bookings">Your bookings</a>`
+			`<a href="${escape(config.origin)}/bookings">Your bookings</a>`
 		]),
 		icsMethod: 'REQUEST',
 		ics: bookingInvite(booking, 'REQUEST')
@@ -120,7 +116,7 @@ export function bookingNoShow(booking: IcsBooking, person: Person, graceMin: num
 
 /** A plain notice to facility staff (alarms, damaged gloves). */
 export function staffNotice(title: string, body: string, link: string): Message {
-	const url = `${origin()}${link}`;
+	const url = `${config.origin}${link}`;
 	return {
 		kind: 'staff_notice',
 		subject: title,

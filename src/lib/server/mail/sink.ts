@@ -2,9 +2,10 @@
 // the scripts that start the sink).
 import { readdir, readFile, stat } from 'node:fs/promises';
 import { join } from 'node:path';
+import { config } from '../config';
 
 export function sinkDir(): string | null {
-	return process.env.MAIL_SINK_DIR ?? null;
+	return config.mailSinkDir;
 }
 
 function header(raw: string, name: string): string {

@@ -5,23 +5,23 @@
 // so mail clients drop the repeat.
 import nodemailer, { type Transporter } from 'nodemailer';
 import { and, eq, inArray, lte, or, sql } from 'drizzle-orm';
+import { config } from '../config';
 import { db } from '../db';
 import { transaction } from '../db/transaction';
 import { outbox } from '../db/schema';
 
-export const MAX_ATTEMPTS = Number(process.env.OUTBOX_MAX_ATTEMPTS ?? 8);
+export const MAX_ATTEMPTS = config.outboxMaxAttempts;
 /** A 'sending' row older than this belonged to a worker that died; it is retried. */
 const STALE_CLAIM_MS = 5 * 60_000;
 
-/** Exponential backoff: 2 s, 4 s, 8 s … capped at 10 minutes. */
+/** Exponential backoff from OUTBOX_BACKOFF_MS (2 s, 4 s, 8 s …), capped at 10 minutes. */
 export function backoffMs(attempts: number): number {
-	const base = Number(process.env.OUTBOX_BACKOFF_MS ?? 2000);
-	return Math.min(base * 2 ** Math.max(0, attempts - 1), 10 * 60_000);
+	return Math.min(config.outboxBackoffMs * 2 ** Math.max(0, attempts - 1), 10 * 60_000);
 }
 
 let transporter: Transporter | undefined;
 function transport(): Transporter {
-	const url = new URL(process.env.SMTP_URL ?? `smtp://127.0.0.1:${process.env.SMTP_PORT ?? 2525}`);
+	const url = new URL(config.smtpUrl);
 	const secure = url.protocol === 'smtps:';
 	transporter ??= nodemailer.createTransport({
 		// A few kept-open connections instead of one per message.
@@ -70,8 +70,6 @@ async function claim(limit: number) {
 	});
 }
 
-const from = () => process.env.MAIL_FROM ?? 'Boxwright <boxwright@example.org>';
-
 /** Sends what is due; returns how many were sent and how many failed this round. */
 export async function drainOnce(limit = 40): Promise<{ sent: number; failed: number }> {
 	const rows = await claim(limit);
@@ -79,7 +77,7 @@ export async function drainOnce(limit = 40): Promise<{ sent: number; failed: num
 		rows.map(async (row) => {
 			try {
 				await transport().sendMail({
-					from: from(),
+					from: config.mailFrom,
 					to: row.toAddress,
 					subject: row.subject,
 					text: row.textBody,
@@ -115,8 +113,11 @@ export async function drainOnce(limit = 40): Promise<{ sent: number; failed: num
 let timer: NodeJS.Timeout | undefined;
 let running = false;
 
-/** Polls the outbox every `intervalMs` until stopped; one round at a time per process. */
-export function startWorker(intervalMs = Number(process.env.OUTBOX_POLL_MS ?? 1000)) {
+/**
+ * Polls the outbox every `intervalMs` until stopped; one round at a time per process. The
+ * server's `init` hook starts it (hooks.server.ts), unless OUTBOX_WORKER=off.
+ */
+export function startWorker(intervalMs = config.outboxPollMs) {
 	if (timer) return;
 	const tick = async () => {
 		if (running) return;

@@ -1,9 +1,9 @@
 import { and, asc, count, eq, inArray, sql } from 'drizzle-orm';
+import { hasRole } from '$lib/domain/roles';
 import { db } from '../db';
 import { groupMemberships, researchGroups, users, type Role, type UserStatus } from '../db/schema';
 import { hashPassword, verifyDecoy, verifyPassword } from '../password';
 import { clearFailedSignIns, recordFailedSignIn, signInRetryAfter } from '../rate-limit';
-import { hasRole } from '../guard';
 import { audit } from './audit';
 import { forbidden, isDuplicateKey, notFound, ServiceError } from './errors';
 import { transaction } from '../db/transaction';

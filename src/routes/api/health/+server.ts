@@ -1,9 +1,8 @@
 import { json } from '@sveltejs/kit';
-import { sql } from 'drizzle-orm';
-import { db } from '$lib/server/db';
+import { checkDatabase } from '$lib/server/services/health';
 import type { RequestHandler } from './$types';
 
 export const GET: RequestHandler = async () => {
-	await db.execute(sql`SELECT 1`);
+	await checkDatabase();
 	return json({ ok: true });
 };
