@@ -1,6 +1,7 @@
 // Upkeep of a box: leak tests and recurring maintenance.
 import { DateTime } from 'luxon';
 import type { OutageKind } from './bookings';
+import { fromLocal } from './time';
 
 export const leakMethods = ['oxygen', 'pressure'] as const;
 export type LeakMethod = (typeof leakMethods)[number];
@@ -82,3 +83,14 @@ export const dueStateLabel: Record<DueState, string> = {
 	due_soon: 'Due soon',
 	ok: 'Scheduled'
 };
+
+/**
+ * When a task entered as done on a date (YYYY-MM-DD, facility clock) counts as done: midday
+ * that day, or now when that is today and midday has not come yet. Null for a date that
+ * does not exist.
+ */
+export function doneOn(date: string, tz: string, now = new Date()): Date | null {
+	const noon = fromLocal(date, '12:00', tz);
+	if (!noon) return null;
+	return noon > now && noon.getTime() - now.getTime() < 12 * 3_600_000 ? now : noon;
+}

@@ -8,12 +8,19 @@ export const grantSchema = z.object({
 });
 
 export const revokeSchema = z.object({
-	certificationId: z.coerce.number().int().positive(),
-	reason: z.string().trim().min(1, 'Say why the certification is revoked.').max(500)
+	certificationId: z.coerce
+		.number({ error: 'Choose a certification.' })
+		.int()
+		.positive('Choose a certification.'),
+	reason: z
+		.string({ error: 'Say why the certification is revoked.' })
+		.trim()
+		.min(1, 'Say why the certification is revoked.')
+		.max(500)
 });
 
 export const moduleSchema = z.object({
-	name: z.string().trim().min(2, 'Name the module.').max(120),
+	name: z.string({ error: 'Name the module.' }).trim().min(2, 'Name the module.').max(120),
 	description: z.string().trim().max(2000).default(''),
 	validityMonths: z.coerce
 		.number({ error: 'Enter how many months it stays valid.' })

@@ -1,8 +1,9 @@
-import { fail, redirect } from '@sveltejs/kit';
+import { redirect } from '@sveltejs/kit';
 import { startSession } from '$lib/server/auth';
 import { checkSignIn, signInMessages } from '$lib/server/services/accounts';
 import { signInSchema } from '$lib/validation/account';
-import { fieldErrors } from '$lib/validation/fields';
+import { runForm } from '$lib/server/forms';
+import { ServiceError } from '$lib/server/services/errors';
 import type { Actions, PageServerLoad } from './$types';
 
 /** Only same-site paths, so the sign-in page cannot be used to bounce people elsewhere. */
@@ -17,19 +18,16 @@ export const load: PageServerLoad = async ({ locals, url }) => {
 
 export const actions: Actions = {
 	default: async ({ request, cookies, url, getClientAddress }) => {
-		const form = Object.fromEntries(await request.formData());
-		const email = typeof form.email === 'string' ? form.email : '';
-		const parsed = signInSchema.safeParse(form);
-		// Echo the e-mail back, never the password.
-		if (!parsed.success) return fail(400, { email, errors: fieldErrors(parsed.error) });
-
-		const result = await checkSignIn(parsed.data.email, parsed.data.password, getClientAddress());
-		if (result.kind === 'throttled') {
-			return fail(429, { email, message: signInMessages.throttled(result.retryAfterSeconds) });
-		}
-		if (result.kind !== 'ok') return fail(400, { email, message: signInMessages[result.kind] });
-
-		await startSession(cookies, result.userId);
+		// The answer echoes the e-mail back, never the password.
+		const answer = await runForm(request, signInSchema, async ({ email, password }) => {
+			const result = await checkSignIn(email, password, getClientAddress());
+			if (result.kind === 'throttled')
+				throw new ServiceError(429, signInMessages.throttled(result.retryAfterSeconds));
+			if (result.kind !== 'ok') throw new ServiceError(400, signInMessages[result.kind]);
+			return { userId: result.userId };
+		});
+		if (!('userId' in answer)) return answer;
+		await startSession(cookies, answer.userId);
 		redirect(303, safeNext(url.searchParams.get('next')));
 	}
 };

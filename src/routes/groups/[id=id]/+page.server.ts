@@ -1,8 +1,9 @@
-import { error, fail } from '@sveltejs/kit';
+import { error } from '@sveltejs/kit';
+import { codeFor } from '$lib/server/http';
 import { hasRole } from '$lib/domain/roles';
 import { requireUser } from '$lib/server/guard';
 import { idParam } from '$lib/server/params';
-import { attempt, type Attempt } from '$lib/server/services/errors';
+import { attempt } from '$lib/server/services/errors';
 import {
 	activePeople,
 	decideMembership,
@@ -13,17 +14,19 @@ import {
 	saveGroup
 } from '$lib/server/services/groups';
 import { recentMonths, usageThisMonth } from '$lib/server/services/statements';
-import { fieldErrors } from '$lib/validation/fields';
-import { groupSchema } from '$lib/validation/groups';
-import { formId } from '$lib/server/forms';
-import type { Actions, PageServerLoad } from './$types';
+import { groupSchema, memberSchema } from '$lib/validation/groups';
+import { runForm } from '$lib/server/forms';
+import type { Actions, PageServerLoad, RequestEvent } from './$types';
 
 export const load: PageServerLoad = async (event) => {
 	const user = requireUser(event);
 	const id = idParam(event.params.id, 'The group');
 	const found = await attempt(() => groupFor(user, id));
 	if (!found.ok)
-		error(found.error.status, { message: found.error.message, code: found.error.code });
+		error(found.error.status, {
+			message: found.error.message,
+			code: found.error.code ?? codeFor(found.error.status)
+		});
 	const group = found.value;
 	const now = new Date();
 	const [members, recent, usage, months] = await Promise.all([
@@ -48,42 +51,36 @@ export const load: PageServerLoad = async (event) => {
 	};
 };
 
+/** A decision on one member, by the group's PI or a manager (the service checks which). */
 async function act(
-	event: Parameters<Actions[string]>[0],
-	call: (userId: number) => Promise<unknown>
+	event: RequestEvent,
+	call: (actor: ReturnType<typeof requireUser>, groupId: number, userId: number) => Promise<unknown>
 ) {
-	requireUser(event);
-	const userId = formId((await event.request.formData()).get('userId'));
-	const result: Attempt<unknown> = await attempt(() => call(userId));
-	if (!result.ok) return fail(result.error.status, { message: result.error.message });
-	return { done: true };
+	const actor = requireUser(event);
+	const groupId = idParam(event.params.id, 'The group');
+	return runForm(event.request, memberSchema, async ({ userId }) => {
+		await call(actor, groupId, userId);
+		return { done: true };
+	});
 }
 
 export const actions: Actions = {
-	remove: (event) =>
-		act(event, (userId) => removeMember(requireUser(event), idParam(event.params.id), userId)),
+	remove: (event) => act(event, removeMember),
 	approve: (event) =>
-		act(event, (userId) =>
-			decideMembership(requireUser(event), idParam(event.params.id), userId, true)
-		),
+		act(event, (actor, groupId, userId) => decideMembership(actor, groupId, userId, true)),
 	decline: (event) =>
-		act(event, (userId) =>
-			decideMembership(requireUser(event), idParam(event.params.id), userId, false)
-		),
+		act(event, (actor, groupId, userId) => decideMembership(actor, groupId, userId, false)),
 	edit: async (event) => {
 		const user = requireUser(event);
 		const id = idParam(event.params.id, 'The group');
-		const values = Object.fromEntries(await event.request.formData()) as Record<string, string>;
-		const parsed = groupSchema.safeParse(values);
-		if (!parsed.success)
-			return fail(400, { values, errors: fieldErrors(parsed.error), message: undefined });
-		const result = await attempt(() => saveGroup(user, parsed.data, id));
-		if (!result.ok)
-			return fail(result.error.status, {
-				values,
-				errors: (result.error.details as { fields?: Record<string, string> })?.fields ?? {},
-				message: result.error.message
-			});
-		return { saved: true };
+		return runForm(
+			event.request,
+			groupSchema,
+			async (group) => {
+				await saveGroup(user, group, id);
+				return { saved: true };
+			},
+			{ booleans: ['external'] }
+		);
 	}
 };

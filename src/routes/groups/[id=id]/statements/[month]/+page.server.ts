@@ -1,4 +1,5 @@
 import { error } from '@sveltejs/kit';
+import { codeFor } from '$lib/server/http';
 import { requireUser } from '$lib/server/guard';
 import { idParam } from '$lib/server/params';
 import { attempt } from '$lib/server/services/errors';
@@ -10,6 +11,9 @@ export const load: PageServerLoad = async (event) => {
 	const groupId = idParam(event.params.id, 'The group');
 	const found = await attempt(() => statementFor(user, groupId, event.params.month));
 	if (!found.ok)
-		error(found.error.status, { message: found.error.message, code: found.error.code });
+		error(found.error.status, {
+			message: found.error.message,
+			code: found.error.code ?? codeFor(found.error.status)
+		});
 	return found.value;
 };
