@@ -60,14 +60,14 @@ export function formValues(form: FormData): Record<string, string> {
 
 export type FormAnswer = {
 	form?: string;
-	values: Record<string, unknown>;
+	values: Record<string, string>;
 	errors: Record<string, string>;
 	message: string;
 };
 
 /** A form action's answer to a refusal from a service, its field messages included. */
 export function refusedForm(
-	values: Record<string, unknown>,
+	values: Record<string, string>,
 	error: ServiceError,
 	form?: string
 ): ActionFailure<FormAnswer & { details?: unknown }> {
@@ -98,7 +98,8 @@ export async function runForm<S extends z.ZodType, R extends object | void>(
 ): Promise<ActionFailure<FormAnswer & { details?: unknown }> | ({ form?: string } & R)> {
 	const form = await request.formData();
 	const input = options.read ? options.read(form) : formInput(form, options);
-	const values = options.read ? input : formValues(form);
+	// A form with structure of its own gets its reading back, which its component reads.
+	const values = (options.read ? input : formValues(form)) as Record<string, string>;
 	const parsed = schema.safeParse(input);
 	if (!parsed.success)
 		return fail(400, {
