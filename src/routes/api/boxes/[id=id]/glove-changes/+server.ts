@@ -3,7 +3,7 @@ import { serve } from '$lib/server/api';
 import { requireRole } from '$lib/server/guard';
 import { readJson } from '$lib/server/http';
 import { idParam } from '$lib/server/params';
-import { startGloveChange } from '$lib/server/services/glove-changes';
+import { startGloveChange } from '$lib/server/services/glove-change-start';
 import { startChangeSchema } from '$lib/validation/glove-changes';
 import type { RequestHandler } from './$types';
 

@@ -2,7 +2,7 @@ import { error, fail, redirect } from '@sveltejs/kit';
 import { requireRole, requireUser } from '$lib/server/guard';
 import { idParam } from '$lib/server/params';
 import { attempt } from '$lib/server/services/errors';
-import { startGloveChange } from '$lib/server/services/glove-changes';
+import { startGloveChange } from '$lib/server/services/glove-change-start';
 import { portView } from '$lib/server/services/gloves';
 import type { Actions, PageServerLoad } from './$types';
 

@@ -6,7 +6,7 @@ import { runForm } from '$lib/server/forms';
 import { requireRole } from '$lib/server/guard';
 import { idParam } from '$lib/server/params';
 import { attempt, ServiceError } from '$lib/server/services/errors';
-import { planGloveChange, startGloveChange } from '$lib/server/services/glove-changes';
+import { planGloveChange, startGloveChange } from '$lib/server/services/glove-change-start';
 import { isoDateTime } from '$lib/validation/bookings';
 import type { Actions, PageServerLoad } from './$types';
 

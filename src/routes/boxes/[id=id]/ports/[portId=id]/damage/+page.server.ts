@@ -5,7 +5,7 @@ import { requireRole, requireUser } from '$lib/server/guard';
 import { idParam } from '$lib/server/params';
 import { attempt, ServiceError } from '$lib/server/services/errors';
 import { runForm } from '$lib/server/forms';
-import { startGloveChange } from '$lib/server/services/glove-changes';
+import { startGloveChange } from '$lib/server/services/glove-change-start';
 import { portAndGlove, reportDamage } from '$lib/server/services/gloves';
 import { checkPhoto, put, remove } from '$lib/server/storage';
 import type { Actions, PageServerLoad } from './$types';
