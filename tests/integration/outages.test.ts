@@ -10,7 +10,14 @@ import {
 	outages,
 	outbox
 } from '../../src/lib/server/db/schema';
-import { closeTestDb, makeBox, makeGroup, makeUser, testDb } from '../support/db';
+import {
+	certifiedMemberAndBox,
+	closeTestDb,
+	makeBox,
+	makeGroup,
+	makeUser,
+	testDb
+} from '../support/db';
 import { errorOf, signedIn } from '../support/http';
 import { sunkMail } from '../support/mail';
 import { slot } from '../support/time';
@@ -179,6 +186,75 @@ describe('POST /api/boxes/:id/outages', () => {
 		});
 		expect(refused.status).toBe(403);
 		expect(await testDb().select().from(outages).where(eq(outages.boxId, boxId))).toEqual([]);
+	});
+});
+
+describe('an outage and a purge buffer: one overlap rule', () => {
+	// A booking holds the box from its start until its purge ends (blocked_until). The rule
+	// that refuses a booking an outage would overlap (holdOverlaps in domain/booking-rules)
+	// also picks the bookings an outage cancels.
+	async function volatileBooking(daysAhead: number) {
+		const { user, boxId } = await certifiedMemberAndBox({ purgeMin: 30 });
+		const times = slot(daysAhead, 9, 60);
+		const made = await (
+			await signedIn(user)
+		).post('/api/bookings', {
+			boxId,
+			...times,
+			purpose: 'Solvent work',
+			volatileSolvents: true
+		});
+		expect(made.status).toBe(201);
+		const { booking } = await made.json();
+		// What is stored is the purge end the rules checked: the end plus the box's 30 min.
+		const [row] = await testDb().select().from(bookings).where(eq(bookings.id, booking.id));
+		expect(row.blockedUntil.getTime()).toBe(new Date(times.end).getTime() + 30 * 60_000);
+		return { boxId, bookingId: booking.id as number };
+	}
+
+	async function outageFrom(boxId: number, start: string, end: string) {
+		const manager = await signedIn(await makeUser('manager'));
+		const preview = await manager.post(`/api/boxes/${boxId}/outages/preview`, { start, end });
+		expect(preview.status).toBe(200);
+		const r = await manager.post(`/api/boxes/${boxId}/outages`, {
+			start,
+			end,
+			kind: 'regeneration',
+			reason: 'Purifier regeneration'
+		});
+		expect(r.status).toBe(201);
+		return {
+			previewed: ((await preview.json()).bookings as { id: number }[]).map((b) => b.id),
+			cancelled: (await r.json()).cancelledBookingIds as number[]
+		};
+	}
+
+	it('an outage starting during a booking’s purge buffer cancels that booking', async () => {
+		const { boxId, bookingId } = await volatileBooking(15);
+		// The booking ends at 10:00; its purge runs to 10:30. The outage starts at 10:15.
+		const { previewed, cancelled } = await outageFrom(
+			boxId,
+			slot(15, 10, 0, 15).start,
+			slot(15, 12, 0).start
+		);
+		expect(previewed).toEqual([bookingId]);
+		expect(cancelled).toEqual([bookingId]);
+		const [row] = await testDb().select().from(bookings).where(eq(bookings.id, bookingId));
+		expect(row).toMatchObject({ status: 'cancelled', cancelCause: 'outage', sequence: 1 });
+	});
+
+	it('an outage starting after the buffer does not cancel the booking', async () => {
+		const { boxId, bookingId } = await volatileBooking(16);
+		// The purge ends at 10:30 and the hold is half-open, so an outage from 10:30 is clear.
+		const { previewed, cancelled } = await outageFrom(
+			boxId,
+			slot(16, 10, 0, 30).start,
+			slot(16, 12, 0).start
+		);
+		expect(previewed).toEqual([]);
+		expect(cancelled).toEqual([]);
+		const [row] = await testDb().select().from(bookings).where(eq(bookings.id, bookingId));
+		expect(row).toMatchObject({ status: 'confirmed', sequence: 0 });
 	});
 });
 

@@ -1,7 +1,10 @@
 import { describe, expect, it } from 'vitest';
 import {
 	checkBooking,
+	holdOverlaps,
 	minutesPerIsoWeek,
+	purgeEnd,
+	quotaSpan,
 	refusalStatus,
 	type BookingRequest,
 	type RuleContext
@@ -52,7 +55,11 @@ const codes = (req: BookingRequest, ctx: RuleContext) =>
 
 describe('a booking that breaks no rule', () => {
 	it('has no reasons and no conflicts', () => {
-		expect(checkBooking(request(), context())).toEqual({ reasons: [], conflicts: [] });
+		expect(checkBooking(request(), context())).toEqual({
+			reasons: [],
+			conflicts: [],
+			blockedUntil: at('2026-12-02T11:00:00Z')
+		});
 		expect(refusalStatus(checkBooking(request(), context()))).toBeNull();
 	});
 });
@@ -190,6 +197,19 @@ describe('weekly quota (ISO weeks in the facility zone)', () => {
 		expect(result.reasons[0].message).toContain('1 h left');
 	});
 
+	it('reads the user’s bookings over the whole ISO weeks the request touches', () => {
+		// Sun 6 Dec 22:00 – Mon 7 Dec 02:00 Berlin: W49 and W50, Mon 30 Nov to Mon 14 Dec.
+		expect(quotaSpan(at('2026-12-06T21:00:00Z'), at('2026-12-07T01:00:00Z'), tz)).toEqual({
+			start: at('2026-11-29T23:00:00Z'),
+			end: at('2026-12-13T23:00:00Z')
+		});
+		// Ending at Monday 00:00 touches nothing of the week that starts then.
+		expect(quotaSpan(at('2026-12-06T21:00:00Z'), at('2026-12-06T23:00:00Z'), tz)).toEqual({
+			start: at('2026-11-29T23:00:00Z'),
+			end: at('2026-12-06T23:00:00Z')
+		});
+	});
+
 	it('splits a booking that spans two ISO weeks and checks each week on its own', () => {
 		const base = at('2026-11-30T08:00:00Z').getTime();
 		const hours = (n: number, offsetDays: number) => ({
@@ -286,5 +306,63 @@ describe('overlaps', () => {
 			'overlaps_booking'
 		]);
 		expect(refusalStatus(result)).toBe(422);
+	});
+});
+
+describe('one overlap rule: a booking holds the box until its purge ends', () => {
+	// Wed 2 Dec 2026: a booking 10:00–12:00 Berlin with volatile solvents holds the box to
+	// 12:30 (09:00Z–11:30Z).
+	const hold = { startAt: at('2026-12-02T09:00:00Z'), blockedUntil: at('2026-12-02T11:30:00Z') };
+	const span = (start: string, end: string) => ({ startAt: at(start), endAt: at(end) });
+
+	it('holdOverlaps: a span starting inside the purge buffer overlaps, one starting at its end does not', () => {
+		expect(holdOverlaps(hold, span('2026-12-02T11:15:00Z', '2026-12-02T13:00:00Z'))).toBe(true);
+		expect(holdOverlaps(hold, span('2026-12-02T11:30:00Z', '2026-12-02T13:00:00Z'))).toBe(false);
+		// Before the hold, touching its start, is clear too; covering it is not.
+		expect(holdOverlaps(hold, span('2026-12-02T07:00:00Z', '2026-12-02T09:00:00Z'))).toBe(false);
+		expect(holdOverlaps(hold, span('2026-12-02T07:00:00Z', '2026-12-02T14:00:00Z'))).toBe(true);
+	});
+
+	it('purgeEnd adds the box’s purge time only when volatile solvents are declared', () => {
+		const end = at('2026-12-02T11:00:00Z');
+		expect(purgeEnd({ end, volatileSolvents: true }, 30)).toEqual(at('2026-12-02T11:30:00Z'));
+		expect(purgeEnd({ end, volatileSolvents: false }, 30)).toEqual(end);
+	});
+
+	it('returns the purge end it checked, which is what the booking stores', () => {
+		expect(checkBooking(request({ volatileSolvents: true }), context()).blockedUntil).toEqual(
+			at('2026-12-02T11:30:00Z')
+		);
+		expect(checkBooking(request(), context()).blockedUntil).toEqual(at('2026-12-02T11:00:00Z'));
+	});
+
+	it('refuses a booking whose purge buffer an outage would overlap, and only then', () => {
+		const outage = (start: string) => [
+			{ id: 7, startAt: at(start), endAt: at('2026-12-02T14:00:00Z'), reason: 'regeneration' }
+		];
+		const during = context({ outages: outage('2026-12-02T11:15:00Z') });
+		expect(codes(request({ volatileSolvents: true }), during)).toEqual(['box_out_of_service']);
+		expect(codes(request({ volatileSolvents: false }), during)).toEqual([]);
+		const after = context({ outages: outage('2026-12-02T11:30:00Z') });
+		expect(codes(request({ volatileSolvents: true }), after)).toEqual([]);
+	});
+
+	it('takes what the server read up to the longest purge and keeps what reaches this box’s own', () => {
+		// The server reads bookings starting up to 12 h after the end; with a 30 min purge only
+		// one starting before 11:30Z collides.
+		const next = (start: string) => ({
+			id: 6,
+			startAt: at(start),
+			endAt: at('2026-12-02T13:00:00Z'),
+			blockedUntil: at('2026-12-02T13:00:00Z'),
+			status: 'confirmed' as const
+		});
+		const volatile = request({ volatileSolvents: true });
+		expect(codes(volatile, context({ others: [next('2026-12-02T11:30:00Z')] }))).toEqual([]);
+		const result = checkBooking(volatile, context({ others: [next('2026-12-02T11:15:00Z')] }));
+		expect(result.reasons.map((r) => r.code)).toEqual(['overlaps_purge']);
+		expect(result.conflicts).toEqual([
+			{ kind: 'purge', id: 6, start: at('2026-12-02T11:00:00Z'), end: at('2026-12-02T11:30:00Z') }
+		]);
 	});
 });

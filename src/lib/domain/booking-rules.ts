@@ -4,7 +4,16 @@
 import type { AtmosphereState, BoxStatus } from './boxes';
 import { chemicalClasses } from './boxes';
 import type { BookingStatus } from './bookings';
-import { formatDateTime, formatRange, local, minutesBetween } from './time';
+import {
+	formatDateTime,
+	formatDuration,
+	formatRange,
+	isoWeekOf,
+	isoWeeksCovering,
+	local,
+	minutesBetween,
+	msWithin
+} from './time';
 
 export type RuleBox = {
 	status: BoxStatus;
@@ -18,6 +27,35 @@ export type RuleBox = {
 	excludedClasses: string[];
 	requiredModules: { id: number; name: string }[];
 };
+
+/**
+ * The time a booking keeps the box from everyone else: [startAt, blockedUntil), its end plus
+ * the box's purge time when volatile solvents are declared (purgeEnd), or until a no-show
+ * freed it. An outage or another booking overlapping that span collides with it.
+ */
+export type Hold = { startAt: Date; blockedUntil: Date };
+
+/** A span of time, [startAt, endAt): an outage, or a booking's own slot. */
+export type Span = { startAt: Date; endAt: Date };
+
+/**
+ * The one overlap rule: does a hold collide with a span? The same question refuses a new
+ * booking that an outage would overlap (checkBooking) and picks the bookings an outage
+ * cancels (services/outages.ts, whose SQL selects by the same span).
+ */
+export function holdOverlaps(hold: Hold, span: Span): boolean {
+	return hold.startAt < span.endAt && span.startAt < hold.blockedUntil;
+}
+
+/** Where a booking's hold ends: after the box's purge time when volatile solvents are declared. */
+export function purgeEnd(
+	booking: { end: Date; volatileSolvents: boolean },
+	purgeMin: number
+): Date {
+	return booking.volatileSolvents
+		? new Date(booking.end.getTime() + purgeMin * 60_000)
+		: booking.end;
+}
 
 /** A booking that holds time on the box (pending, confirmed, completed or no-show). */
 export type HeldBooking = {
@@ -45,8 +83,13 @@ export type RuleContext = {
 	tz: string;
 	box: RuleBox;
 	certifications: HeldCertification[];
-	/** Held bookings on this box that end (with purge) after the request's window opens. */
+	/**
+	 * Held bookings on this box near the request: at least every one whose hold overlaps the
+	 * request's. The server reads up to the longest purge a box may set; holdOverlaps keeps
+	 * what reaches this box's own.
+	 */
 	others: HeldBooking[];
+	/** Outages near the request: at least every one its hold overlaps. */
 	outages: OutageSpan[];
 	/** The user's held bookings on this box in the ISO weeks the request touches. */
 	userBookings: { startAt: Date; endAt: Date }[];
@@ -77,46 +120,34 @@ export type Conflict = {
 
 export type Reason = { code: ReasonCode; message: string; conflict?: Conflict };
 
-export type RuleResult = { reasons: Reason[]; conflicts: Conflict[] };
+export type RuleResult = {
+	reasons: Reason[];
+	conflicts: Conflict[];
+	/** The end of the hold that was checked (purgeEnd): what the booking stores. */
+	blockedUntil: Date;
+};
 
 const overlaps = (aStart: Date, aEnd: Date, bStart: Date, bEnd: Date) =>
 	aStart < bEnd && bStart < aEnd;
 
-function hours(minutes: number): string {
-	if (minutes % 60 === 0) return `${minutes / 60} h`;
-	if (minutes < 60) return `${minutes} min`;
-	return `${Math.floor(minutes / 60)} h ${minutes % 60} min`;
-}
-
-/** The ISO weeks of the zone that [start, end) touches, as UTC windows keyed "2026-W49". */
-export function isoWeeks(start: Date, end: Date, tz: string) {
-	const weeks: { key: string; from: Date; to: Date }[] = [];
-	let cursor = local(start, tz).startOf('week');
-	const stop = local(end, tz);
-	while (cursor < stop) {
-		const next = cursor.plus({ weeks: 1 });
-		weeks.push({
-			key: `${cursor.weekYear}-W${String(cursor.weekNumber).padStart(2, '0')}`,
-			from: cursor.toJSDate(),
-			to: next.toJSDate()
-		});
-		cursor = next;
-	}
-	return weeks;
-}
-
-/** Minutes of [start, end) inside [from, to), by plain arithmetic (this runs per booking). */
-function minutesWithin(start: Date, end: Date, from: Date, to: Date): number {
-	const a = Math.max(start.getTime(), from.getTime());
-	const b = Math.min(end.getTime(), to.getTime());
-	return b > a ? (b - a) / 60_000 : 0;
-}
+/** Minutes of [start, end) inside [from, to). */
+const minutesWithin = (start: Date, end: Date, from: Date, to: Date) =>
+	msWithin(start, end, from, to) / 60_000;
 
 /** Minutes of [start, end) falling in each ISO week of the zone. */
 export function minutesPerIsoWeek(start: Date, end: Date, tz: string): Map<string, number> {
 	return new Map(
-		isoWeeks(start, end, tz).map((w) => [w.key, minutesWithin(start, end, w.from, w.to)])
+		isoWeeksCovering(start, end, tz).map((w) => [w.key, minutesWithin(start, end, w.start, w.end)])
 	);
+}
+
+/**
+ * The whole ISO weeks (facility zone) a request touches, as one span: where the quota rule
+ * needs the user's other bookings.
+ */
+export function quotaSpan(start: Date, end: Date, tz: string): { start: Date; end: Date } {
+	const last = new Date(Math.max(start.getTime(), end.getTime() - 1));
+	return { start: isoWeekOf(start, tz).start, end: isoWeekOf(last, tz).end };
 }
 
 /** Is the instant on the box's slot grid, in wall-clock minutes of the facility zone? */
@@ -175,23 +206,24 @@ export function checkBooking(req: BookingRequest, ctx: RuleContext): RuleResult 
 		);
 	}
 	if (length < box.minLengthMin)
-		add('too_short', `The shortest booking is ${hours(box.minLengthMin)}.`);
+		add('too_short', `The shortest booking is ${formatDuration(box.minLengthMin)}.`);
 	if (length > box.maxLengthMin)
 		add(
 			'too_long',
-			`The longest booking is ${hours(box.maxLengthMin)}; this one is ${hours(length)}.`
+			`The longest booking is ${formatDuration(box.maxLengthMin)}; this one is ${formatDuration(length)}.`
 		);
 
 	// Weekly quota, per ISO week of the facility's zone.
-	for (const week of isoWeeks(req.start, req.end, tz)) {
+	for (const week of isoWeeksCovering(req.start, req.end, tz)) {
 		let used = 0;
-		for (const b of ctx.userBookings) used += minutesWithin(b.startAt, b.endAt, week.from, week.to);
-		const total = used + minutesWithin(req.start, req.end, week.from, week.to);
+		for (const b of ctx.userBookings)
+			used += minutesWithin(b.startAt, b.endAt, week.start, week.end);
+		const total = used + minutesWithin(req.start, req.end, week.start, week.end);
 		if (total > box.weeklyQuotaMin) {
 			const left = Math.max(0, box.weeklyQuotaMin - used);
 			add(
 				'quota_exceeded',
-				`This would take you to ${hours(total)} on this box in week ${week.key.slice(-2)}; the limit is ${hours(box.weeklyQuotaMin)} a week (${hours(left)} left).`
+				`This would take you to ${formatDuration(total)} on this box in week ${week.key.slice(-2)}; the limit is ${formatDuration(box.weeklyQuotaMin)} a week (${formatDuration(left)} left).`
 			);
 		}
 	}
@@ -202,12 +234,14 @@ export function checkBooking(req: BookingRequest, ctx: RuleContext): RuleResult 
 		add('excluded_chemical', `${label} may not be used in this box.`);
 	}
 
-	// Overlaps: other bookings, pending holds, purge buffers (theirs after them, ours after us).
+	// Overlaps, one rule (holdOverlaps) for all of them: the request holds the box until its
+	// purge ends, and so does every other booking; an outage may overlap no part of that.
 	const conflicts: Conflict[] = [];
-	const ownBlockedUntil = req.volatileSolvents
-		? new Date(req.end.getTime() + box.purgeMin * 60_000)
-		: req.end;
+	const blockedUntil = purgeEnd(req, box.purgeMin);
+	const hold: Hold = { startAt: req.start, blockedUntil };
 	for (const other of ctx.others) {
+		if (!holdOverlaps(hold, { startAt: other.startAt, endAt: other.blockedUntil })) continue;
+		// Which part meets which, for the message: their slot, their purge, or our purge.
 		if (overlaps(req.start, req.end, other.startAt, other.endAt)) {
 			const pending = other.status === 'pending';
 			const conflict: Conflict = {
@@ -237,23 +271,23 @@ export function checkBooking(req: BookingRequest, ctx: RuleContext): RuleResult 
 				`The box is being purged after volatile-solvent work until ${formatDateTime(other.blockedUntil, tz)}.`,
 				conflict
 			);
-		} else if (overlaps(req.end, ownBlockedUntil, other.startAt, other.endAt)) {
+		} else {
 			const conflict: Conflict = {
 				kind: 'purge',
 				id: other.id,
 				start: req.end,
-				end: ownBlockedUntil
+				end: blockedUntil
 			};
 			conflicts.push(conflict);
 			add(
 				'overlaps_purge',
-				`Volatile solvents need ${hours(box.purgeMin)} of purge after the booking, but the next booking starts ${formatDateTime(other.startAt, tz)}.`,
+				`Volatile solvents need ${formatDuration(box.purgeMin)} of purge after the booking, but the next booking starts ${formatDateTime(other.startAt, tz)}.`,
 				conflict
 			);
 		}
 	}
 	for (const outage of ctx.outages) {
-		if (overlaps(req.start, ownBlockedUntil, outage.startAt, outage.endAt)) {
+		if (holdOverlaps(hold, outage)) {
 			const conflict: Conflict = {
 				kind: 'outage',
 				id: outage.id,
@@ -269,7 +303,7 @@ export function checkBooking(req: BookingRequest, ctx: RuleContext): RuleResult 
 		}
 	}
 
-	return { reasons, conflicts };
+	return { reasons, conflicts, blockedUntil };
 }
 
 /** 409 when only overlaps stand in the way (another request got there first), else 422. */

@@ -10,6 +10,12 @@ export type BookingStatus = (typeof bookingStatuses)[number];
 /** Statuses that hold box time (and count towards the weekly quota). */
 export const holdingStatuses: BookingStatus[] = ['pending', 'confirmed', 'completed', 'no_show'];
 
+/**
+ * Statuses of a booking still to be worked: it keeps others out of its hold, an outage over
+ * its hold cancels it, and its holder or a manager may still cancel or move it.
+ */
+export const openStatuses: BookingStatus[] = ['pending', 'confirmed'];
+
 export const cancelCauses = ['user', 'manager', 'outage'] as const;
 export type CancelCause = (typeof cancelCauses)[number];
 

@@ -11,9 +11,9 @@
 // - A late cancellation is one by the booker made later than start − the box's
 //   late-cancellation window (or after the start); it is billed as booked (see usage.ts).
 //   Cancellations by a manager or for an outage are never the booker's doing.
-import { DateTime } from 'luxon';
 import { outageKinds, type BookingStatus, type CancelCause, type OutageKind } from './bookings';
 import { GLOVE_DUE_MONTHS, gloveState, isDamaged } from './gloves';
+import { isoWeekOf, isoWeekStart, isoWeeksCovering, local, msWithin, type IsoWeek } from './time';
 import { billedHoursIn, chargeOf } from './usage';
 
 const HOUR_MS = 3_600_000;
@@ -52,15 +52,8 @@ export const INSPECT_AFTER_BOOKED_HOURS = 40;
 
 export type Interval = { startAt: Date; endAt: Date };
 
-export type Week = {
-	/** ISO week, e.g. "2026-W13". */
-	key: string;
-	/** Monday 00:00 in the facility zone, as an instant. */
-	start: Date;
-	/** The next Monday 00:00. */
-	end: Date;
-	/** Real hours in the week: 168, or 167 / 169 in a week with a daylight-saving change. */
-	hours: number;
+/** An ISO week of time.ts, with its days for the page. */
+export type Week = IsoWeek & {
 	/** "23–29 Mar" on the facility clock. */
 	label: string;
 };
@@ -84,48 +77,29 @@ export type ReportOutage = Interval & { boxId: number; kind: OutageKind };
 
 export type Range = { from: Date; to: Date };
 
-function weekStarting(start: DateTime): Week {
-	const end = start.plus({ weeks: 1 });
-	const last = end.minus({ days: 1 });
+function labelled(week: IsoWeek, tz: string): Week {
+	const start = local(week.start, tz);
+	const last = local(week.end, tz).minus({ days: 1 });
 	const label =
 		start.month === last.month
 			? `${start.toFormat('d')}–${last.toFormat('d LLL')}`
 			: `${start.toFormat('d LLL')}–${last.toFormat('d LLL')}`;
-	return {
-		key: start.toFormat("kkkk-'W'WW"),
-		start: start.toJSDate(),
-		end: end.toJSDate(),
-		hours: (end.toMillis() - start.toMillis()) / HOUR_MS,
-		label
-	};
-}
-
-function startOfWeek(at: Date, tz: string): DateTime {
-	const dt = DateTime.fromJSDate(at, { zone: tz });
-	if (!dt.isValid) throw new Error(`Unknown time zone “${tz}”.`);
-	// luxon's week is the ISO week (Monday first) unless locale weeks are asked for.
-	return dt.startOf('week');
+	return { ...week, label };
 }
 
 /** The ISO week (facility zone) that holds the instant `at`. */
 export function weekOf(at: Date, tz: string): Week {
-	return weekStarting(startOfWeek(at, tz));
+	return labelled(isoWeekOf(at, tz), tz);
 }
 
 /** The ISO weeks that overlap [from, to), in order, whole. */
 export function weeksCovering(from: Date, to: Date, tz: string): Week[] {
-	const weeks: Week[] = [];
-	for (let start = startOfWeek(from, tz); start.toMillis() < to.getTime();) {
-		const week = weekStarting(start);
-		weeks.push(week);
-		start = DateTime.fromJSDate(week.end, { zone: tz });
-	}
-	return weeks;
+	return isoWeeksCovering(from, to, tz).map((w) => labelled(w, tz));
 }
 
 /** The last `weeks` ISO weeks, ending with the one that holds `now` (so far and ahead). */
 export function reportRange(weeks: number, now: Date, tz: string): Range {
-	const current = startOfWeek(now, tz);
+	const current = isoWeekStart(now, tz);
 	return {
 		from: current.minus({ weeks: weeks - 1 }).toJSDate(),
 		to: current.plus({ weeks: 1 }).toJSDate()
@@ -140,9 +114,7 @@ export function parseReportWeeks(value: string | null | undefined): ReportWeeks 
 
 /** Real hours of [startAt, endAt) that fall inside [from, to). */
 export function hoursWithin(i: Interval, from: Date, to: Date): number {
-	const a = Math.max(i.startAt.getTime(), from.getTime());
-	const b = Math.min(i.endAt.getTime(), to.getTime());
-	return b > a ? (b - a) / HOUR_MS : 0;
+	return msWithin(i.startAt, i.endAt, from, to) / HOUR_MS;
 }
 
 /** An interval split into the ISO weeks it touches, with the real hours in each. */

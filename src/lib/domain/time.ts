@@ -80,3 +80,85 @@ export function fromWallClock(value: string, tz: string): Date {
 export function currentOffset(tz: string, at = new Date()): string {
 	return DateTime.fromJSDate(at).setZone(tz).toFormat('ZZ');
 }
+
+/** An ISO week (Monday 00:00 to the next Monday 00:00) on the facility's wall clock. */
+export type IsoWeek = {
+	/** "2026-W13": the ISO week year, which differs from the calendar year around New Year. */
+	key: string;
+	/** Monday 00:00 in the zone, as an instant. */
+	start: Date;
+	/** The next Monday 00:00. */
+	end: Date;
+	/** Real hours in the week: 168, or 167 / 169 in a week with a daylight-saving change. */
+	hours: number;
+};
+
+/** Monday 00:00 (facility zone) of the ISO week that holds `at`. */
+export function isoWeekStart(at: Date, tz: string): DateTime {
+	const dt = local(at, tz);
+	if (!dt.isValid) throw new Error(`Unknown time zone “${tz}”.`);
+	// luxon's week is the ISO week (Monday first) unless locale weeks are asked for.
+	return dt.startOf('week');
+}
+
+function isoWeekFrom(start: DateTime): IsoWeek {
+	const end = start.plus({ weeks: 1 });
+	return {
+		key: start.toFormat("kkkk-'W'WW"),
+		start: start.toJSDate(),
+		end: end.toJSDate(),
+		hours: (end.toMillis() - start.toMillis()) / 3_600_000
+	};
+}
+
+/** The ISO week (facility zone) that holds the instant `at`. */
+export function isoWeekOf(at: Date, tz: string): IsoWeek {
+	return isoWeekFrom(isoWeekStart(at, tz));
+}
+
+/** The ISO weeks (facility zone) that [from, to) touches, in order, whole; none when empty. */
+export function isoWeeksCovering(from: Date, to: Date, tz: string): IsoWeek[] {
+	const weeks: IsoWeek[] = [];
+	for (let start = isoWeekStart(from, tz); start.toMillis() < to.getTime();) {
+		const week = isoWeekFrom(start);
+		weeks.push(week);
+		start = local(week.end, tz);
+	}
+	return weeks;
+}
+
+/** Milliseconds of [start, end) inside [from, to), by plain arithmetic (it runs per booking). */
+export function msWithin(start: Date, end: Date, from: Date, to: Date): number {
+	const a = Math.max(start.getTime(), from.getTime());
+	const b = Math.min(end.getTime(), to.getTime());
+	return b > a ? b - a : 0;
+}
+
+/** [start, end) cut to [from, to), or null when nothing of it is inside. */
+export function clip(
+	start: Date,
+	end: Date,
+	from: Date,
+	to: Date
+): { start: Date; end: Date } | null {
+	const a = Math.max(start.getTime(), from.getTime());
+	const b = Math.min(end.getTime(), to.getTime());
+	return b > a ? { start: new Date(a), end: new Date(b) } : null;
+}
+
+/**
+ * A length of time in words, to the minute: "45 min", "3 h", "2 h 30 min". With `days`, from
+ * 48 h on in days and hours, minutes dropped ("2 d 15 h"): for lead times, where a minute
+ * does not matter.
+ */
+export function formatDuration(minutes: number, { days = false } = {}): string {
+	const m = Math.round(minutes);
+	if (days && m >= 48 * 60) {
+		const d = Math.floor(m / 1440);
+		const h = Math.floor((m % 1440) / 60);
+		return h ? `${d} d ${h} h` : `${d} d`;
+	}
+	if (m < 60) return `${m} min`;
+	const h = Math.floor(m / 60);
+	return m % 60 ? `${h} h ${m % 60} min` : `${h} h`;
+}

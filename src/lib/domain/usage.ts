@@ -36,7 +36,7 @@
 import { DateTime } from 'luxon';
 import type { BookingStatus, CancelCause } from './bookings';
 import { DEFAULT_CURRENCY, plainAmount, toCents } from './money';
-import { local } from './time';
+import { clip, formatDuration, local, msWithin } from './time';
 
 /** Minutes after the start with no check-in before a confirmed booking counts as a no-show. */
 export const NO_SHOW_GRACE_MIN = 15;
@@ -229,11 +229,8 @@ function billedMsIn(b: Billable, bounds: MonthBounds, charge: Charge): number {
 }
 
 /** Real elapsed milliseconds of [startAt, endAt) inside the month's bounds. */
-function msInMonth(startAt: Date, endAt: Date, bounds: MonthBounds): number {
-	const a = Math.max(startAt.getTime(), bounds.start.getTime());
-	const b = Math.min(endAt.getTime(), bounds.end.getTime());
-	return b > a ? b - a : 0;
-}
+const msInMonth = (startAt: Date, endAt: Date, bounds: MonthBounds) =>
+	msWithin(startAt, endAt, bounds.start, bounds.end);
 
 /** Real elapsed hours of [startAt, endAt) inside the month's bounds. */
 export function hoursInMonth(startAt: Date, endAt: Date, bounds: MonthBounds): number {
@@ -242,10 +239,13 @@ export function hoursInMonth(startAt: Date, endAt: Date, bounds: MonthBounds): n
 
 function usedMsInMonth(booking: UsageBooking, bounds: MonthBounds): number {
 	if (!booking.checkInAt) return 0;
-	const from = Math.max(booking.checkInAt.getTime(), booking.startAt.getTime());
-	const to = Math.min((booking.checkOutAt ?? booking.endAt).getTime(), booking.endAt.getTime());
-	if (to <= from) return 0;
-	return msInMonth(new Date(from), new Date(to), bounds);
+	const used = clip(
+		booking.checkInAt,
+		booking.checkOutAt ?? booking.endAt,
+		booking.startAt,
+		booking.endAt
+	);
+	return used ? msInMonth(used.start, used.end, bounds) : 0;
 }
 
 /** Hours checked in, from check-in to check-out (or the booked end), within the slot and month. */
@@ -254,17 +254,7 @@ export function usedHoursInMonth(booking: UsageBooking, bounds: MonthBounds): nu
 }
 
 /** "45 min", "3 h", "2 h 30 min", "2 d 15 h": a lead time in words. */
-function duration(minutes: number): string {
-	const m = Math.round(minutes);
-	if (m < 60) return `${m} min`;
-	if (m < 48 * 60) {
-		const h = Math.floor(m / 60);
-		return m % 60 ? `${h} h ${m % 60} min` : `${h} h`;
-	}
-	const d = Math.floor(m / 1440);
-	const h = Math.floor((m % 1440) / 60);
-	return h ? `${d} d ${h} h` : `${d} d`;
-}
+const duration = (minutes: number) => formatDuration(minutes, { days: true });
 
 function userCancellation(b: Billable): Charge {
 	if (b.confirmedAt === null)

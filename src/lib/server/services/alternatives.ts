@@ -1,9 +1,10 @@
-import { and, eq, gt, gte, inArray, isNull, lt, ne } from 'drizzle-orm';
-import { LONGEST_HOLD_MS } from '$lib/domain/bookings';
+import { and, eq, gt, inArray, isNull, lt, ne } from 'drizzle-orm';
+import { openStatuses } from '$lib/domain/bookings';
 import { findAlternatives, type Alternative } from '$lib/domain/alternatives';
 import { config } from '../config';
 import type { Database } from '../db/connect';
 import { db, type Transaction } from '../db';
+import { startsFrom } from '../db/queries';
 import { bookings, boxes, boxRequiredModules, certifications, outages } from '../db/schema';
 
 const WINDOW_DAYS = 7;
@@ -31,8 +32,8 @@ export async function alternativeFinder(
 			.from(bookings)
 			.where(
 				and(
-					inArray(bookings.status, ['pending', 'confirmed']),
-					gte(bookings.startAt, new Date(now.getTime() - LONGEST_HOLD_MS)),
+					inArray(bookings.status, openStatuses),
+					startsFrom(now),
 					lt(bookings.startAt, until),
 					gt(bookings.blockedUntil, now)
 				)

@@ -1,13 +1,13 @@
 // Calendar feeds (RFC 5545) of a person's bookings and of a box's schedule.
 import { createHash, randomBytes } from 'node:crypto';
-import { and, asc, eq, gt, gte, lt } from 'drizzle-orm';
-import { LONGEST_BOOKING_MS } from '$lib/domain/bookings';
+import { and, asc, eq, gt, lt } from 'drizzle-orm';
 import ical, { ICalEventStatus } from 'ical-generator';
 import { DateTime } from 'luxon';
 import { tzlib_get_ical_block } from 'timezones-ical-library';
 import { outageKindLabel } from '$lib/domain/bookings';
 import { config } from '../config';
 import { db } from '../db';
+import { startsFrom } from '../db/queries';
 import { bookings, boxes, outages, users } from '../db/schema';
 import { bookingUid } from '../ical';
 import { audit } from './audit';
@@ -154,7 +154,7 @@ export async function userFeed(userId: number, now = new Date()): Promise<Feed> 
 		.where(
 			and(
 				eq(bookings.userId, userId),
-				gte(bookings.startAt, new Date(from.getTime() - LONGEST_BOOKING_MS)),
+				startsFrom(from),
 				lt(bookings.startAt, to),
 				gt(bookings.endAt, from)
 			)
@@ -204,7 +204,7 @@ export async function boxFeed(boxId: number, now = new Date()): Promise<Feed | n
 			.where(
 				and(
 					eq(bookings.boxId, boxId),
-					gte(bookings.startAt, new Date(from.getTime() - LONGEST_BOOKING_MS)),
+					startsFrom(from),
 					lt(bookings.startAt, to),
 					gt(bookings.endAt, from)
 				)

@@ -1,7 +1,9 @@
 // Research groups: who leads them, who is in them, and what their people booked.
 import { and, asc, desc, eq, gte, inArray, lt, ne, sql } from 'drizzle-orm';
+import { openStatuses } from '$lib/domain/bookings';
 import { hasRole } from '$lib/domain/roles';
 import { db } from '../db';
+import { defaultGroupId } from '../db/queries';
 import {
 	bookings,
 	boxes,
@@ -152,11 +154,9 @@ export async function removeMember(actor: Actor, groupId: number, userId: number
 			.where(eq(groupMemberships.id, row.id));
 		// Bookings still ahead go to the person's remaining group (or none); past ones stay.
 		await tx.execute(sql`
-			UPDATE bookings SET group_id = (
-				SELECT gm.group_id FROM group_memberships gm
-				WHERE gm.user_id = ${userId} AND gm.status = 'active' ORDER BY gm.id LIMIT 1)
+			UPDATE bookings SET group_id = ${defaultGroupId(userId)}
 			WHERE user_id = ${userId} AND group_id = ${groupId} AND start_at > ${new Date()}
-				AND status IN ('pending', 'confirmed')`);
+				AND ${inArray(bookings.status, openStatuses)}`);
 		await audit(tx, {
 			actorId: actor.id,
 			action: 'group.member_removed',

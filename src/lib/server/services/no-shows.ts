@@ -2,10 +2,10 @@
 // start is marked no-show; the rest of its slot (and its purge buffer) is freed and the
 // booker told. Safe to run from several processes: each booking is claimed with
 // FOR UPDATE SKIP LOCKED and checked again under the lock.
-import { and, eq, gt, gte, isNull, lte, sql } from 'drizzle-orm';
-import { LONGEST_BOOKING_MS } from '$lib/domain/bookings';
+import { and, eq, gt, isNull, lte, sql } from 'drizzle-orm';
 import { noShowDue } from '$lib/domain/usage';
 import { db } from '../db';
+import { startsFrom } from '../db/queries';
 import { bookings, boxes, users } from '../db/schema';
 import { bookingNoShow } from '../mail/messages';
 import { enqueue } from '../mail/outbox';
@@ -20,9 +20,9 @@ export async function markNoShows(now = new Date()): Promise<number[]> {
 		.where(
 			and(
 				eq(bookings.status, 'confirmed'),
-				// A booking still running started at most the longest booking ago: the
-				// (status, start_at) index is read from there, not from the first booking.
-				gte(bookings.startAt, new Date(now.getTime() - LONGEST_BOOKING_MS)),
+				// The (status, start_at) index is read from the earliest start of a booking still
+				// running, not from the first booking.
+				startsFrom(now),
 				isNull(bookings.checkInAt),
 				lte(bookings.startAt, sql`${now} - INTERVAL ${boxes.noShowGraceMin} MINUTE`),
 				gt(bookings.endAt, now)

@@ -1,9 +1,10 @@
-import { and, asc, eq, gt, gte, inArray, lt, sql } from 'drizzle-orm';
-import { LONGEST_BOOKING_MS } from '$lib/domain/bookings';
-import type { OutageKind } from '$lib/domain/bookings';
+import { and, asc, eq, gt, inArray, lt, sql } from 'drizzle-orm';
+import { holdOverlaps } from '$lib/domain/booking-rules';
+import { openStatuses, type OutageKind } from '$lib/domain/bookings';
 import { hasRole } from '$lib/domain/roles';
 import { db, type Transaction } from '../db';
 import type { Database } from '../db/connect';
+import { startsFrom } from '../db/queries';
 import { bookings, boxes, gloveChanges, outages, outbox, users, type Box } from '../db/schema';
 import { bookingCancelled } from '../mail/messages';
 import { enqueueMany, type Outgoing } from '../mail/outbox';
@@ -21,9 +22,10 @@ function mustManage(actor: Actor, message = 'Only a manager can take a box out o
 }
 
 /**
- * The pending or confirmed bookings on the box that overlap [start, end): ending after it
- * starts and starting before it ends (a booking's purge buffer alone does not overlap).
- * With `lock`, the rows read are locked for the caller's transaction.
+ * The open bookings on the box whose hold [start_at, blocked_until) overlaps [start, end):
+ * holdOverlaps of $lib/domain/booking-rules, the rule that also refuses a new booking, so an
+ * outage starting in a purge buffer cancels its booking. The SQL selects by that span, the
+ * predicate decides. With `lock`, the rows read are locked for the caller's transaction.
  */
 async function overlapping(
 	q: Database | Transaction,
@@ -37,6 +39,7 @@ async function overlapping(
 			id: bookings.id,
 			startAt: bookings.startAt,
 			endAt: bookings.endAt,
+			blockedUntil: bookings.blockedUntil,
 			purpose: bookings.purpose,
 			sequence: bookings.sequence,
 			userId: users.id,
@@ -48,15 +51,16 @@ async function overlapping(
 		.where(
 			and(
 				eq(bookings.boxId, boxId),
-				inArray(bookings.status, ['pending', 'confirmed']),
+				inArray(bookings.status, openStatuses),
 				// From a point on (box_id, start_at): only the rows read are locked.
-				gte(bookings.startAt, new Date(start.getTime() - LONGEST_BOOKING_MS)),
+				startsFrom(start),
 				lt(bookings.startAt, end),
-				gt(bookings.endAt, start)
+				gt(bookings.blockedUntil, start)
 			)
 		)
 		.orderBy(asc(bookings.startAt));
-	return lock ? query.for('update') : query;
+	const rows = await (lock ? query.for('update') : query);
+	return rows.filter((b) => holdOverlaps(b, { startAt: start, endAt: end }));
 }
 
 /** What an outage over [start, end) would cancel, by person and time; changes nothing. */

@@ -1,6 +1,6 @@
 // The manager's reports over whole ISO weeks: the rows are read here, bounded by the range
 // on indexed columns; the interval arithmetic is in $lib/domain/reports.
-import { and, asc, eq, gt, gte, inArray, isNull, lt, or } from 'drizzle-orm';
+import { and, asc, eq, gt, inArray, isNull, lt, or } from 'drizzle-orm';
 import type { Gas } from '$lib/domain/boxes';
 import { outageKindLabel, type OutageKind } from '$lib/domain/bookings';
 import type { GloveMaterial } from '$lib/domain/gloves';
@@ -20,8 +20,8 @@ import {
 	type Week
 } from '$lib/domain/reports';
 import { config } from '../config';
-import { LONGEST_BOOKING_MS } from '$lib/domain/bookings';
 import { db } from '../db';
+import { startsFrom } from '../db/queries';
 import {
 	bookings,
 	boxes,
@@ -120,7 +120,7 @@ export async function facilityReport(
 			.where(
 				and(
 					inArray(bookings.boxId, boxIds),
-					gte(bookings.startAt, new Date(from.getTime() - LONGEST_BOOKING_MS)),
+					startsFrom(from),
 					lt(bookings.startAt, to),
 					gt(bookings.endAt, from)
 				)
@@ -236,10 +236,7 @@ async function wearOf(rows: FittedRow[], now: Date): Promise<Map<number, GloveWe
 				and(
 					or(
 						...[...oldest].map(([boxId, since]) =>
-							and(
-								eq(bookings.boxId, boxId),
-								gte(bookings.startAt, new Date(since.getTime() - LONGEST_BOOKING_MS))
-							)
+							and(eq(bookings.boxId, boxId), startsFrom(since))
 						)
 					),
 					lt(bookings.startAt, now),

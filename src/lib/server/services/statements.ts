@@ -1,7 +1,6 @@
 // Monthly statements per group: worked out from the bookings while a month is open, read
 // from the snapshot taken when a manager closed it, so closed figures never change.
-import { and, asc, desc, eq, gt, gte, inArray, lt, sql } from 'drizzle-orm';
-import { LONGEST_BOOKING_MS } from '$lib/domain/bookings';
+import { and, asc, desc, eq, gt, inArray, lt, sql } from 'drizzle-orm';
 import { DateTime } from 'luxon';
 import { toCents } from '$lib/domain/money';
 import { hasRole } from '$lib/domain/roles';
@@ -15,6 +14,7 @@ import {
 } from '$lib/domain/usage';
 import { config } from '../config';
 import { db, type Transaction } from '../db';
+import { startsFrom } from '../db/queries';
 import {
 	bookings,
 	boxes,
@@ -97,8 +97,7 @@ async function usageBookings(
 							groups.map((g) => g.id)
 						)
 					: undefined,
-				// A booking reaching into the month started at most the longest booking before it.
-				gte(bookings.startAt, new Date(start.getTime() - LONGEST_BOOKING_MS)),
+				startsFrom(start),
 				lt(bookings.startAt, end),
 				gt(bookings.endAt, start)
 			)

@@ -1,0 +1,142 @@
+// Pieces of SQL that services need the same way, written once, and the booking check's
+// locked read. They know the schema and the domain's types and constants, nothing of the
+// services that use them.
+import { gte, inArray, sql, type SQL } from 'drizzle-orm';
+import type { MySqlColumn } from 'drizzle-orm/mysql-core';
+import type { HeldBooking, OutageSpan, Span } from '$lib/domain/booking-rules';
+import type { AtmosphereState, BoxStatus } from '$lib/domain/boxes';
+import {
+	LONGEST_HOLD_MS,
+	LONGEST_PURGE_MS,
+	holdingStatuses,
+	openStatuses,
+	type BookingStatus
+} from '$lib/domain/bookings';
+import type { Transaction } from './index';
+import { bookings } from './schema';
+
+/**
+ * The lower bound on bookings.start_at for a read of the bookings that reach into a window
+ * opening at `at`: no hold (booking plus purge) lasts longer than LONGEST_HOLD_MS, so beside
+ * `end_at > at` or `blocked_until > at` it changes no answer. It lets MariaDB scan the
+ * (…, start_at) indexes from that point instead of from the first booking, so a box's (a
+ * person's, a group's) history is never read whole.
+ */
+export const startsFrom = (at: Date) =>
+	gte(bookings.startAt, new Date(at.getTime() - LONGEST_HOLD_MS));
+
+/**
+ * The group a person's bookings are billed to unless they choose another: the one they
+ * joined first (their oldest active membership); NULL when they are in none. A scalar
+ * subquery, so it fits a SELECT list or an UPDATE's SET. Spelled out in SQL: inside a
+ * subquery the builder's column names lose their tables.
+ */
+export const defaultGroupId = (userId: number | MySqlColumn): SQL<number | null> =>
+	sql<number | null>`(SELECT gm.group_id FROM group_memberships gm
+		WHERE gm.user_id = ${userId} AND gm.status = 'active' ORDER BY gm.id LIMIT 1)`;
+
+type RawBox = {
+	id: number;
+	name: string;
+	room: string;
+	status: BoxStatus;
+	atmosphere_state: AtmosphereState;
+	slot_step_min: number;
+	min_length_min: number;
+	max_length_min: number;
+	horizon_days: number;
+	weekly_quota_min: number;
+	purge_min: number;
+	needs_approval: number;
+	excluded_classes: string | string[];
+};
+
+const BOX_RULE_COLUMNS =
+	'id, name, room, status, atmosphere_state, slot_step_min, min_length_min, max_length_min, horizon_days, weekly_quota_min, purge_min, needs_approval, excluded_classes';
+
+type NearRow = {
+	src: 'other' | 'mine' | 'outage';
+	id: number;
+	start_at: string;
+	end_at: string;
+	blocked_until: string;
+	status: string;
+};
+
+/** Raw queries through drizzle get DATETIME as "YYYY-MM-DD hh:mm:ss" text, in UTC. */
+const utc = (value: string) => new Date(`${value.replace(' ', 'T')}Z`);
+
+function ruleBox(r: RawBox) {
+	return {
+		id: r.id,
+		name: r.name,
+		room: r.room,
+		status: r.status,
+		atmosphereState: r.atmosphere_state,
+		slotStepMin: r.slot_step_min,
+		minLengthMin: r.min_length_min,
+		maxLengthMin: r.max_length_min,
+		horizonDays: r.horizon_days,
+		weeklyQuotaMin: r.weekly_quota_min,
+		purgeMin: r.purge_min,
+		needsApproval: Boolean(r.needs_approval),
+		// mysql2 parses the column itself when the server flags it as JSON; MariaDB may not.
+		excludedClasses:
+			typeof r.excluded_classes === 'string'
+				? (JSON.parse(r.excluded_classes) as string[])
+				: r.excluded_classes
+	};
+}
+
+export type BookingRequestRead = {
+	boxId: number;
+	userId: number;
+	start: Date;
+	end: Date;
+	/** The span whose bookings of the user count for the quota (quotaSpan). */
+	quota: { start: Date; end: Date };
+	/** A booking being moved, which must not collide with itself. */
+	ignoreBookingId?: number;
+};
+
+/**
+ * Locks the box row, then reads in the same round trip what the lock protects for a booking
+ * request: the box's rules, open bookings whose hold reaches the request or that start
+ * within the longest purge after it, the user's held bookings in the quota span, and the
+ * outages that near. A superset: the box's own purge time is only known once its row is
+ * in hand, so checkBooking decides what collides. Each booking branch is a range scan on
+ * (box_id, start_at) with a lower bound, so the box's history is never read whole. Null
+ * when there is no such box.
+ */
+export async function lockBoxForBooking(tx: Transaction, q: BookingRequestRead) {
+	const ignore = q.ignoreBookingId ?? 0;
+	const purgeBound = new Date(q.end.getTime() + LONGEST_PURGE_MS);
+	const [[lockedRows, rows]] = (await tx.execute(sql`
+		SELECT ${sql.raw(BOX_RULE_COLUMNS)} FROM boxes WHERE id = ${q.boxId} FOR UPDATE;
+		SELECT 'other' AS src, id, start_at, end_at, blocked_until, status FROM bookings
+		WHERE box_id = ${q.boxId} AND ${inArray(bookings.status, openStatuses)} AND id <> ${ignore}
+			AND start_at < ${purgeBound} AND blocked_until > ${q.start} AND ${startsFrom(q.start)}
+		UNION ALL
+		SELECT 'mine', id, start_at, end_at, blocked_until, status FROM bookings
+		WHERE box_id = ${q.boxId} AND user_id = ${q.userId} AND id <> ${ignore}
+			AND ${inArray(bookings.status, holdingStatuses)} AND start_at < ${q.quota.end}
+			AND end_at > ${q.quota.start} AND ${startsFrom(q.quota.start)}
+		UNION ALL
+		SELECT 'outage', id, start_at, end_at, end_at, reason FROM outages
+		WHERE box_id = ${q.boxId} AND start_at < ${purgeBound} AND end_at > ${q.start}
+	`)) as unknown as [[RawBox[], NearRow[]]];
+	if (!lockedRows.length) return null;
+	const span = (r: NearRow): Span => ({ startAt: utc(r.start_at), endAt: utc(r.end_at) });
+	const near = (src: NearRow['src']) => rows.filter((r) => r.src === src);
+	return {
+		box: ruleBox(lockedRows[0]),
+		others: near('other').map((r): HeldBooking => ({
+			id: r.id,
+			...span(r),
+			blockedUntil: utc(r.blocked_until),
+			status: r.status as BookingStatus
+		})),
+		outages: near('outage').map((r): OutageSpan => ({ id: r.id, ...span(r), reason: r.status })),
+		userBookings: near('mine').map(span)
+	};
+}

@@ -1,0 +1,193 @@
+// How bookings are shown, read only: the calendar's events (bookings, their purge buffers
+// and outages in a range, for /api/boxes/:id/events and /api/events), a person's own list,
+// and one booking as the API gives it. Times carry the facility zone's offset.
+import { and, asc, desc, eq, gt, inArray, lt } from 'drizzle-orm';
+import { holdingStatuses, type BookingStatus } from '$lib/domain/bookings';
+import { isoInZone } from '$lib/domain/time';
+import { config } from '../config';
+import { db } from '../db';
+import { startsFrom } from '../db/queries';
+import { bookings, boxes, outages, users, type Booking } from '../db/schema';
+
+export type PublicBooking = {
+	id: number;
+	boxId: number;
+	userId: number;
+	start: string;
+	end: string;
+	purgeUntil: string | null;
+	purpose: string;
+	chemicalClasses: string[];
+	volatileSolvents: boolean;
+	status: BookingStatus;
+	cancelReason: string | null;
+	cancelCause: string | null;
+	/** The outage that cancelled it, when one did. */
+	outageId: number | null;
+};
+
+type BookingView = Pick<
+	Booking,
+	| 'id'
+	| 'boxId'
+	| 'userId'
+	| 'startAt'
+	| 'endAt'
+	| 'blockedUntil'
+	| 'purpose'
+	| 'chemicalClasses'
+	| 'volatileSolvents'
+	| 'status'
+	| 'cancelReason'
+	| 'cancelCause'
+	| 'outageId'
+>;
+
+export function toPublic(b: BookingView, tz = config.facilityTz): PublicBooking {
+	return {
+		id: b.id,
+		boxId: b.boxId,
+		userId: b.userId,
+		start: isoInZone(b.startAt, tz),
+		end: isoInZone(b.endAt, tz),
+		purgeUntil: b.blockedUntil > b.endAt ? isoInZone(b.blockedUntil, tz) : null,
+		purpose: b.purpose,
+		chemicalClasses: b.chemicalClasses,
+		volatileSolvents: b.volatileSolvents,
+		status: b.status,
+		cancelReason: b.cancelReason,
+		cancelCause: b.cancelCause,
+		outageId: b.outageId
+	};
+}
+
+/** A person's bookings, newest first: those still to come (or under way) and the rest. */
+export async function bookingsOf(userId: number, now = new Date()) {
+	const rows = await db
+		.select({
+			id: bookings.id,
+			boxId: bookings.boxId,
+			boxName: boxes.name,
+			gas: boxes.gas,
+			startAt: bookings.startAt,
+			endAt: bookings.endAt,
+			purpose: bookings.purpose,
+			status: bookings.status,
+			cancelReason: bookings.cancelReason,
+			cancelCause: bookings.cancelCause,
+			volatileSolvents: bookings.volatileSolvents,
+			checkInAt: bookings.checkInAt,
+			checkOutAt: bookings.checkOutAt,
+			cancelWindowHours: boxes.cancelWindowHours
+		})
+		.from(bookings)
+		.innerJoin(boxes, eq(boxes.id, bookings.boxId))
+		.where(eq(bookings.userId, userId))
+		.orderBy(desc(bookings.startAt))
+		.limit(500);
+	const upcoming = rows.filter((b) => b.endAt > now && b.status !== 'cancelled').reverse();
+	const past = rows.filter((b) => !(b.endAt > now && b.status !== 'cancelled'));
+	return { upcoming, past };
+}
+
+export type CalendarEvent = {
+	id: string;
+	kind: 'booking' | 'pending' | 'purge' | 'outage';
+	boxId: number;
+	start: string;
+	end: string;
+	title: string;
+	mine: boolean;
+	bookingId?: number;
+	outageId?: number;
+	status?: BookingStatus;
+};
+
+/**
+ * Bookings (with their purge buffers) and outages overlapping [start, end). The range
+ * scan uses (box_id, start_at); the lower bound on start_at keeps it from reading the
+ * box's whole history.
+ */
+export async function events(
+	boxIds: number[] | 'all',
+	start: Date,
+	end: Date,
+	viewerId: number
+): Promise<CalendarEvent[]> {
+	const tz = config.facilityTz;
+	const boxFilter = boxIds === 'all' ? undefined : inArray(bookings.boxId, boxIds);
+	const outageFilter = boxIds === 'all' ? undefined : inArray(outages.boxId, boxIds);
+	const [bookingRows, outageRows] = await Promise.all([
+		db
+			.select({
+				id: bookings.id,
+				boxId: bookings.boxId,
+				userId: bookings.userId,
+				userName: users.name,
+				startAt: bookings.startAt,
+				endAt: bookings.endAt,
+				blockedUntil: bookings.blockedUntil,
+				status: bookings.status,
+				purpose: bookings.purpose
+			})
+			.from(bookings)
+			.innerJoin(users, eq(users.id, bookings.userId))
+			.where(
+				and(
+					boxFilter,
+					inArray(bookings.status, holdingStatuses),
+					lt(bookings.startAt, end),
+					gt(bookings.blockedUntil, start),
+					startsFrom(start)
+				)
+			)
+			.orderBy(asc(bookings.startAt)),
+		db
+			.select()
+			.from(outages)
+			.where(and(outageFilter, lt(outages.startAt, end), gt(outages.endAt, start)))
+	]);
+	const list: CalendarEvent[] = [];
+	for (const b of bookingRows) {
+		const mine = b.userId === viewerId;
+		// A no-show holds the box only until it was marked; the rest of its slot is free.
+		const noShow = b.status === 'no_show';
+		const end = noShow && b.blockedUntil < b.endAt ? b.blockedUntil : b.endAt;
+		list.push({
+			id: `booking-${b.id}`,
+			kind: b.status === 'pending' ? 'pending' : 'booking',
+			boxId: b.boxId,
+			start: isoInZone(b.startAt, tz),
+			end: isoInZone(end > b.startAt ? end : b.endAt, tz),
+			title: `${mine ? `You: ${b.purpose}` : b.userName}${noShow ? ' (no-show)' : ''}`,
+			mine,
+			bookingId: b.id,
+			status: b.status
+		});
+		if (b.blockedUntil > b.endAt) {
+			list.push({
+				id: `purge-${b.id}`,
+				kind: 'purge',
+				boxId: b.boxId,
+				start: isoInZone(b.endAt, tz),
+				end: isoInZone(b.blockedUntil, tz),
+				title: 'Purge',
+				mine,
+				bookingId: b.id
+			});
+		}
+	}
+	for (const o of outageRows) {
+		list.push({
+			id: `outage-${o.id}`,
+			kind: 'outage',
+			boxId: o.boxId,
+			start: isoInZone(o.startAt, tz),
+			end: isoInZone(o.endAt, tz),
+			title: `Out of service: ${o.reason}`,
+			mine: false,
+			outageId: o.id
+		});
+	}
+	return list;
+}
