@@ -1,6 +1,6 @@
 import { requireUser } from '$lib/server/guard';
 import { profile } from '$lib/server/services/accounts';
-import { bookingsOf } from '$lib/server/services/bookings';
+import { bookingsOf } from '$lib/server/services/calendar';
 import { listBoxes } from '$lib/server/services/boxes';
 import { certificationsOf } from '$lib/server/services/training';
 import { hasRole } from '$lib/domain/roles';

@@ -1,7 +1,8 @@
 import { requireUser } from '$lib/server/guard';
 import { runForm } from '$lib/server/forms';
 import { rebookOffers } from '$lib/server/services/alternatives';
-import { bookingsOf, cancelBooking, rebook } from '$lib/server/services/bookings';
+import { cancelBooking, rebook } from '$lib/server/services/bookings';
+import { bookingsOf } from '$lib/server/services/calendar';
 import { cancelFormSchema, rebookSchema } from '$lib/validation/bookings';
 import type { Actions, PageServerLoad } from './$types';
 

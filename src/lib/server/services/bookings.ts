@@ -23,9 +23,6 @@ import { bookingConfirmed } from '../mail/messages';
 import { enqueue } from '../mail/outbox';
 import { transaction } from '../db/transaction';
 
-// How bookings are shown moved to calendar.ts; routes still import it from here.
-export { bookingsOf, events, toPublic, type CalendarEvent, type PublicBooking } from './calendar';
-
 /**
  * Books a free time offered after an outage cancelled `fromBookingId`: the same purpose,
  * chemicals and billing group as the booking it replaces, through the same rules as any.

@@ -2,7 +2,8 @@ import { json } from '@sveltejs/kit';
 import { serve } from '$lib/server/api';
 import { requireRole } from '$lib/server/guard';
 import { readJson } from '$lib/server/http';
-import { createBooking, toPublic } from '$lib/server/services/bookings';
+import { createBooking } from '$lib/server/services/bookings';
+import { toPublic } from '$lib/server/services/calendar';
 import { bookingSchema } from '$lib/validation/bookings';
 import type { RequestHandler } from './$types';
 

@@ -1,7 +1,7 @@
 import { json } from '@sveltejs/kit';
 import { requireUser } from '$lib/server/guard';
 import { invalidInput } from '$lib/server/http';
-import { events } from '$lib/server/services/bookings';
+import { events } from '$lib/server/services/calendar';
 import { rangeSchema } from '$lib/validation/bookings';
 import { fieldErrors } from '$lib/validation/fields';
 import type { RequestHandler } from './$types';

@@ -2,7 +2,8 @@ import { json } from '@sveltejs/kit';
 import { serve } from '$lib/server/api';
 import { requireRole } from '$lib/server/guard';
 import { idParam } from '$lib/server/params';
-import { cancelBooking, getBooking, toPublic } from '$lib/server/services/bookings';
+import { cancelBooking, getBooking } from '$lib/server/services/bookings';
+import { toPublic } from '$lib/server/services/calendar';
 import type { RequestHandler } from './$types';
 
 export const GET: RequestHandler = async (event) => {

@@ -2,7 +2,7 @@ import { json } from '@sveltejs/kit';
 import { requireUser } from '$lib/server/guard';
 import { fail, invalidInput } from '$lib/server/http';
 import { idParam } from '$lib/server/params';
-import { events } from '$lib/server/services/bookings';
+import { events } from '$lib/server/services/calendar';
 import { boxExists } from '$lib/server/services/boxes';
 import { rangeSchema } from '$lib/validation/bookings';
 import { fieldErrors } from '$lib/validation/fields';
