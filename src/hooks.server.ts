@@ -8,7 +8,9 @@ import { shapeApiError } from '$lib/server/http';
 import { startWorker, stopWorker } from '$lib/server/mail/worker';
 import { startScheduler, stopScheduler } from '$lib/server/scheduler';
 
-const isApi = (path: string) => path.startsWith('/api/') || path.startsWith('/ical/');
+// Paths that answer clients (and links opened outside a page) in the contract's error shape.
+const isApi = (path: string) =>
+	path.startsWith('/api/') || path.startsWith('/ical/') || path.startsWith('/documents/');
 
 const session: Handle = async ({ event, resolve }) => {
 	const { user, session } = await readSession(event.cookies);

@@ -1,7 +1,7 @@
 // Pieces of SQL that services need the same way, written once, and the booking check's
 // locked read. They know the schema and the domain's types and constants, nothing of the
 // services that use them.
-import { gte, inArray, sql, type SQL } from 'drizzle-orm';
+import { getTableName, gte, inArray, sql, type SQL } from 'drizzle-orm';
 import type { MySqlColumn } from 'drizzle-orm/mysql-core';
 import type { HeldBooking, OutageSpan, Span } from '$lib/domain/booking-rules';
 import type { AtmosphereState, BoxStatus } from '$lib/domain/boxes';
@@ -33,7 +33,13 @@ export const startsFrom = (at: Date) =>
  */
 export const defaultGroupId = (userId: number | MySqlColumn): SQL<number | null> =>
 	sql<number | null>`(SELECT gm.group_id FROM group_memberships gm
-		WHERE gm.user_id = ${userId} AND gm.status = 'active' ORDER BY gm.id LIMIT 1)`;
+		WHERE gm.user_id = ${typeof userId === 'number' ? userId : qualified(userId)}
+		AND gm.status = 'active' ORDER BY gm.id LIMIT 1)`;
+
+/** A column with its table's name, as a subquery must name an outer column. */
+function qualified(column: MySqlColumn): SQL {
+	return sql`${sql.identifier(getTableName(column.table))}.${sql.identifier(column.name)}`;
+}
 
 type RawBox = {
 	id: number;
