@@ -49,6 +49,8 @@ export const bookings = mysqlTable(
 		checkOutAt: datetime({ mode: 'date' }),
 		/** iCalendar SEQUENCE: raised on every change the holder's calendar should see. */
 		sequence: int().notNull().default(0),
+		/** Bookings made together as a weekly series share the first one's id. */
+		seriesId: int(),
 		createdAt: datetime({ mode: 'date' })
 			.notNull()
 			.default(sql`CURRENT_TIMESTAMP`),
@@ -94,3 +96,24 @@ export const outages = mysqlTable(
 
 export type Booking = typeof bookings.$inferSelect;
 export type Outage = typeof outages.$inferSelect;
+
+/** "Tell me if this frees up": one notice when the watched time on the box is free. */
+export const bookingWatches = mysqlTable(
+	'booking_watches',
+	{
+		id: int().autoincrement().primaryKey(),
+		userId: int()
+			.notNull()
+			.references(() => users.id, { onDelete: 'cascade' }),
+		boxId: int()
+			.notNull()
+			.references(() => boxes.id, { onDelete: 'cascade' }),
+		startAt: datetime({ mode: 'date' }).notNull(),
+		endAt: datetime({ mode: 'date' }).notNull(),
+		createdAt: datetime({ mode: 'date' })
+			.notNull()
+			.default(sql`CURRENT_TIMESTAMP`),
+		notifiedAt: datetime({ mode: 'date' })
+	},
+	(t) => [index('booking_watches_box_idx').on(t.boxId, t.notifiedAt, t.startAt)]
+);

@@ -1,5 +1,6 @@
 import {
 	datetime,
+	mysqlEnum,
 	index,
 	int,
 	mysqlTable,
@@ -71,3 +72,31 @@ export const certifications = mysqlTable(
 );
 
 export type TrainingModule = typeof trainingModules.$inferSelect;
+
+export const trainingRequestStatuses = ['open', 'granted', 'declined', 'withdrawn'] as const;
+
+/** A person asking to be trained in a module; its trainers are told and decide. */
+export const trainingRequests = mysqlTable(
+	'training_requests',
+	{
+		id: int().autoincrement().primaryKey(),
+		userId: int()
+			.notNull()
+			.references(() => users.id, { onDelete: 'cascade' }),
+		moduleId: int()
+			.notNull()
+			.references(() => trainingModules.id, { onDelete: 'cascade' }),
+		note: varchar({ length: 500 }),
+		status: mysqlEnum(trainingRequestStatuses).notNull().default('open'),
+		createdAt: datetime({ mode: 'date' })
+			.notNull()
+			.default(sql`CURRENT_TIMESTAMP`),
+		decidedAt: datetime({ mode: 'date' }),
+		decidedBy: int(),
+		decisionNote: varchar({ length: 500 })
+	},
+	(t) => [
+		index('training_requests_module_idx').on(t.moduleId, t.status),
+		index('training_requests_user_idx').on(t.userId, t.status)
+	]
+);

@@ -1,5 +1,6 @@
 import {
 	boolean,
+	char,
 	datetime,
 	index,
 	int,
@@ -12,8 +13,11 @@ import { sql } from 'drizzle-orm';
 import { roles } from '../../domain/roles';
 export type { Role } from '../../domain/roles';
 
-/** pending: registered, waiting for a PI or manager; suspended: may not sign in. */
-export const userStatuses = ['pending', 'active', 'suspended'] as const;
+/**
+ * pending: registered, waiting for a PI or manager; invited: asked by an admin, no password
+ * yet; active; suspended: may not sign in (deactivated by an admin).
+ */
+export const userStatuses = ['pending', 'invited', 'active', 'suspended'] as const;
 export type UserStatus = (typeof userStatuses)[number];
 
 export const users = mysqlTable('users', {
@@ -46,6 +50,29 @@ export const sessions = mysqlTable(
 		expiresAt: datetime({ mode: 'date' }).notNull()
 	},
 	(t) => [index('sessions_user_idx').on(t.userId)]
+);
+
+/**
+ * Single-use links sent by e-mail: a password reset, or an invitation to set one. Only the
+ * token's SHA-256 is kept.
+ */
+export const accountTokens = mysqlTable(
+	'account_tokens',
+	{
+		id: int().autoincrement().primaryKey(),
+		userId: int()
+			.notNull()
+			.references(() => users.id, { onDelete: 'cascade' }),
+		kind: mysqlEnum(['reset', 'invite']).notNull(),
+		tokenHash: char({ length: 64 }).notNull().unique(),
+		expiresAt: datetime({ mode: 'date' }).notNull(),
+		usedAt: datetime({ mode: 'date' }),
+		createdBy: int(),
+		createdAt: datetime({ mode: 'date' })
+			.notNull()
+			.default(sql`CURRENT_TIMESTAMP`)
+	},
+	(t) => [index('account_tokens_user_idx').on(t.userId, t.kind)]
 );
 
 export type User = typeof users.$inferSelect;
