@@ -227,18 +227,7 @@ export async function completeGloveChange(
 			.update(gloves)
 			.set({ removedAt: now, removedReason: 'Replaced in a glove change' })
 			.where(and(eq(gloves.portId, port.id), isNull(gloves.removedAt)));
-		const [fitted] = await tx
-			.insert(gloves)
-			.values({
-				portId: port.id,
-				material: glove.material,
-				size: glove.size,
-				thicknessMm: glove.thicknessMm,
-				hand: glove.hand,
-				turnedInsideOut: glove.turnedInsideOut,
-				installedAt: now
-			})
-			.$returningId();
+		const fitted = await putOnPort(tx, port.id, glove, now);
 		const override = input.overrideReason?.trim() || null;
 		await tx
 			.update(gloveChanges)
@@ -261,6 +250,23 @@ export async function completeGloveChange(
 		});
 		return { newGloveId: fitted.id, outageEnded };
 	});
+}
+
+/** Records the glove fitted in a change as the port's glove from `now`. */
+async function putOnPort(tx: Transaction, portId: number, glove: FittedGlove, now: Date) {
+	const [row] = await tx
+		.insert(gloves)
+		.values({
+			portId,
+			material: glove.material,
+			size: glove.size,
+			thicknessMm: glove.thicknessMm,
+			hand: glove.hand,
+			turnedInsideOut: glove.turnedInsideOut,
+			installedAt: now
+		})
+		.$returningId();
+	return row;
 }
 
 /** Ends the change's outage now when no other open change shares it. */
@@ -308,22 +314,7 @@ export async function abandonGloveChange(
 				.set({ removedAt: now, removedReason: 'Taken off in an abandoned glove change' })
 				.where(and(eq(gloves.portId, change.portId), isNull(gloves.removedAt)));
 		const glove = fittedGlove(change.steps);
-		let newGloveId: number | null = null;
-		if (glove) {
-			const [row] = await tx
-				.insert(gloves)
-				.values({
-					portId: change.portId,
-					material: glove.material,
-					size: glove.size,
-					thicknessMm: glove.thicknessMm,
-					hand: glove.hand,
-					turnedInsideOut: glove.turnedInsideOut,
-					installedAt: now
-				})
-				.$returningId();
-			newGloveId = row.id;
-		}
+		const newGloveId = glove ? (await putOnPort(tx, change.portId, glove, now)).id : null;
 		await tx
 			.update(gloveChanges)
 			.set({
