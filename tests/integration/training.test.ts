@@ -143,3 +143,79 @@ describe('certifications', () => {
 		).toBe(403);
 	});
 });
+
+describe('editing modules', () => {
+	it('a manager appoints a new trainer to a module, who can then certify it', async () => {
+		const moduleId = await makeModule('appointed', 12);
+		const manager = await signedIn(await makeUser('manager'));
+		const newTrainer = await makeUser('trainer');
+		const trainee = await makeUser('member');
+		const today = DateTime.now().setZone(facilityTz).toISODate()!;
+		const trainer = await signedIn(newTrainer);
+		const grant = { userId: trainee.id, moduleId, grantedOn: today };
+		expect((await trainer.form('/manage/training?/grant', grant)).status).toBe(403);
+
+		// Flagged as untaught until then, on the page and on the manager's dashboard.
+		expect(await (await manager.get('/')).text()).toContain('no trainer');
+
+		const params = new URLSearchParams({
+			moduleId: String(moduleId),
+			name: `Renamed ${moduleId}`,
+			description: 'Transfers through the large antechamber',
+			validityMonths: '24'
+		});
+		params.append('trainerIds', String(newTrainer.id));
+		const saved = await manager.request('POST', `/manage/training?edit=${moduleId}&/edit`, params);
+		expect(saved.status).toBe(200);
+		const [row] = await testDb()
+			.select()
+			.from(moduleTrainers)
+			.where(eq(moduleTrainers.moduleId, moduleId));
+		expect(row.userId).toBe(newTrainer.id);
+
+		expect((await trainer.form('/manage/training?/grant', grant)).status).toBe(200);
+		const [cert] = await testDb()
+			.select()
+			.from(certifications)
+			.where(and(eq(certifications.userId, trainee.id), eq(certifications.moduleId, moduleId)));
+		// The new validity applies to this grant.
+		const expected = DateTime.fromISO(today, { zone: facilityTz }).plus({ months: 24 }).toJSDate();
+		expect(cert.expiresAt.getTime()).toBe(expected.getTime());
+	});
+
+	it('refuses a member as trainer, a circle of prerequisites, and trainers who edit', async () => {
+		const basic = await makeModule('circle-basic');
+		const advanced = await makeModule('circle-advanced');
+		await testDb()
+			.insert(modulePrerequisites)
+			.values({ moduleId: advanced, requiresModuleId: basic });
+		const manager = await signedIn(await makeUser('manager'));
+		const member = await makeUser('member');
+		const edit = (fields: Record<string, string | number>, trainerIds: number[] = []) => {
+			const params = new URLSearchParams(
+				Object.entries(fields).map(([k, v]) => [k, String(v)] as [string, string])
+			);
+			for (const id of trainerIds) params.append('trainerIds', String(id));
+			return manager.request('POST', `/manage/training?edit=${basic}&/edit`, params);
+		};
+		const base = { moduleId: basic, name: `Basic ${basic}`, validityMonths: 12 };
+
+		const notTrainer = await edit(base, [member.id]);
+		expect(notTrainer.status).toBe(400);
+		expect(await notTrainer.text()).toContain('cannot teach');
+
+		const circle = await edit({ ...base, prerequisiteIds: advanced });
+		expect(circle.status).toBe(400);
+		expect(await circle.text()).toContain('cannot need itself first');
+		const prereqs = await testDb()
+			.select()
+			.from(modulePrerequisites)
+			.where(eq(modulePrerequisites.moduleId, basic));
+		expect(prereqs).toHaveLength(0);
+
+		const trainer = await signedIn(await makeUser('trainer'));
+		expect(
+			(await trainer.form(`/manage/training?/edit`, { ...base, name: 'Taken over' })).status
+		).toBe(403);
+	});
+});

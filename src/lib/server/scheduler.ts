@@ -1,12 +1,15 @@
-// Periodic jobs every app process runs: maintenance falling due, no-shows.
+// Periodic jobs every app process runs: maintenance falling due, no-shows, certifications
+// about to expire.
 // Each job is safe to run from several processes at once (row locks and dedupe keys).
 import { config } from './config';
+import { remindExpiringCertifications } from './services/certification-reminders';
 import { notifyDueTasks } from './services/maintenance';
 import { markNoShows } from './services/no-shows';
 
 const jobs: { name: string; run: () => Promise<unknown> }[] = [
 	{ name: 'maintenance due', run: () => notifyDueTasks() },
-	{ name: 'no-shows', run: () => markNoShows() }
+	{ name: 'no-shows', run: () => markNoShows() },
+	{ name: 'certification reminders', run: () => remindExpiringCertifications() }
 ];
 
 let timer: ReturnType<typeof setTimeout> | undefined;

@@ -1,6 +1,11 @@
 // What each role's dashboard needs beyond the member's own bookings and certifications.
 import { and, asc, count, eq, inArray, isNull } from 'drizzle-orm';
-import { EXPIRY_WARNING_DAYS, standingByPersonAndModule } from '$lib/domain/certifications';
+import {
+	EXPIRY_WARNING_DAYS,
+	standingByPersonAndModule,
+	type CertificationState
+} from '$lib/domain/certifications';
+import { bookingPath, isLive } from '$lib/domain/training-requests';
 import { db } from '../db';
 import {
 	certifications,
@@ -11,6 +16,8 @@ import {
 	users
 } from '../db/schema';
 import { usageThisMonthFor } from './statements';
+import { listModules } from './training';
+import { openRequestsOf } from './training-requests';
 
 /**
  * For a trainer: people whose certification in a module they teach has lapsed or lapses
@@ -81,4 +88,34 @@ export async function groupsUsage(piUserId: number, now = new Date()) {
 		.orderBy(asc(researchGroups.name));
 	const usage = await usageThisMonthFor(groups, now);
 	return groups.map((g) => ({ ...g, usage: usage.get(g.id)!.totals }));
+}
+
+/**
+ * For someone who cannot book any box yet: per box, the modules they still need, who
+ * teaches each, what it needs first, and whether they have asked for it. Null when some box
+ * is open to them (or there are none).
+ */
+export async function firstBookingPath(
+	userId: number,
+	boxes: { id: number; name: string; requiredModules: { id: number; name: string }[] }[],
+	standings: { moduleId: number; state: CertificationState }[]
+) {
+	const held = new Set(standings.filter((c) => isLive(c.state)).map((c) => c.moduleId));
+	const path = bookingPath(boxes, held);
+	if (path.canBookAny) return null;
+	const [modules, requests] = await Promise.all([listModules(), openRequestsOf(userId)]);
+	return path.boxes.map((b) => ({
+		id: b.id,
+		name: b.name,
+		missing: b.missing.map((m) => {
+			const module = modules.find((x) => x.id === m.id);
+			return {
+				id: m.id,
+				name: m.name,
+				trainers: module?.trainers.map((t) => t.name) ?? [],
+				needsFirst: module?.prerequisites.filter((p) => !held.has(p.id)).map((p) => p.name) ?? [],
+				requestedAt: requests.find((r) => r.moduleId === m.id)?.createdAt ?? null
+			};
+		})
+	}));
 }

@@ -22,11 +22,51 @@ export async function notificationsOf(userId: number, limit = 50) {
 		.limit(limit);
 }
 
-export async function markAllRead(userId: number) {
+export async function markAllRead(userId: number, now = new Date()) {
 	await db
 		.update(notifications)
-		.set({ readAt: new Date() })
+		.set({ readAt: now })
 		.where(and(eq(notifications.userId, userId), isNull(notifications.readAt)));
+}
+
+/** One line for a client that shows a notice as text: its title, then its body. */
+export const noticeText = (n: { title: string; body: string }) =>
+	n.body ? `${n.title} — ${n.body}` : n.title;
+
+/** The bell's contents for a client: how many are unread and the newest notices. */
+export async function notificationFeed(userId: number, limit = 50) {
+	const [unread, items] = await Promise.all([unreadCount(userId), notificationsOf(userId, limit)]);
+	return {
+		unread,
+		items: items.map((n) => ({
+			id: n.id,
+			kind: n.kind,
+			title: n.title,
+			body: n.body,
+			text: noticeText(n),
+			link: n.link,
+			createdAt: n.createdAt,
+			read: n.readAt !== null
+		}))
+	};
+}
+
+/**
+ * Marks the given notices read; only the user's own are touched (another's id changes
+ * nothing, and says nothing of whether it exists). Returns what is still unread.
+ */
+export async function markRead(userId: number, ids: number[], now = new Date()) {
+	await db
+		.update(notifications)
+		.set({ readAt: now })
+		.where(
+			and(
+				eq(notifications.userId, userId),
+				inArray(notifications.id, ids),
+				isNull(notifications.readAt)
+			)
+		);
+	return unreadCount(userId);
 }
 
 /** The outbox for managers: newest first, optionally one status. */

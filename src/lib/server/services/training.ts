@@ -1,6 +1,8 @@
-import { and, asc, desc, eq, inArray, isNull } from 'drizzle-orm';
+import { and, asc, desc, eq, gt, inArray, isNull } from 'drizzle-orm';
 import { DateTime } from 'luxon';
 import { hasRole } from '$lib/domain/roles';
+import { bookingPath } from '$lib/domain/training-requests';
+import type { GrantInput } from '$lib/validation/training';
 import {
 	certificationState,
 	EXPIRY_WARNING_DAYS,
@@ -9,7 +11,7 @@ import {
 	type CertificationState
 } from '$lib/domain/certifications';
 import { config } from '../config';
-import { db } from '../db';
+import { db, type Transaction } from '../db';
 import {
 	boxes,
 	boxRequiredModules,
@@ -17,11 +19,16 @@ import {
 	modulePrerequisites,
 	moduleTrainers,
 	trainingModules,
+	trainingRequests,
 	users
 } from '../db/schema';
+import { enqueue } from '../mail/outbox';
+import { certificationGranted } from '../mail/training-messages';
 import type { Actor } from './accounts';
 import { audit } from './audit';
-import { forbidden, isDuplicateKey, notFound, ServiceError } from './errors';
+import { forbidden, notFound, ServiceError } from './errors';
+import { mayCertify } from './training-modules';
+import { closeOpenRequest } from './training-requests';
 import { transaction } from '../db/transaction';
 
 export { certificationState, EXPIRY_WARNING_DAYS, type CertificationState };
@@ -34,6 +41,9 @@ export async function listModules() {
 			.select({ moduleId: moduleTrainers.moduleId, userId: users.id, name: users.name })
 			.from(moduleTrainers)
 			.innerJoin(users, eq(users.id, moduleTrainers.userId))
+			// Only those who can teach now: active, and still trainers (or above).
+			.where(and(eq(users.status, 'active'), inArray(users.role, ['trainer', 'manager', 'admin'])))
+			.orderBy(asc(users.name))
 	]);
 	return modules.map((m) => ({
 		id: m.id,
@@ -123,46 +133,55 @@ export async function currentCertifications(userId: number, now = new Date()) {
 		}));
 }
 
-async function mayCertify(actor: Actor, moduleId: number): Promise<boolean> {
-	if (hasRole(actor.role, 'manager')) return true;
-	if (!hasRole(actor.role, 'trainer')) return false;
-	const [row] = await db
-		.select()
-		.from(moduleTrainers)
-		.where(and(eq(moduleTrainers.moduleId, moduleId), eq(moduleTrainers.userId, actor.id)));
-	return Boolean(row);
+const refuse = (field: string, message: string) =>
+	new ServiceError(400, message, { fields: { [field]: message } });
+
+/** When the training was and until when it holds: from the form's date, the API's expiry. */
+function grantTimes(
+	input: Pick<GrantInput, 'grantedOn' | 'expiresAt'>,
+	validityMonths: number,
+	now: Date
+) {
+	let granted = DateTime.fromJSDate(now, { zone: config.facilityTz });
+	if (input.grantedOn) {
+		granted = DateTime.fromISO(input.grantedOn, { zone: config.facilityTz }).startOf('day');
+		if (!granted.isValid) throw refuse('grantedOn', 'Enter the training date.');
+		if (granted.toJSDate() > now)
+			throw refuse('grantedOn', 'The training date cannot be in the future.');
+	}
+	const longest = granted.plus({ months: validityMonths }).toJSDate();
+	if (input.expiresAt && input.expiresAt <= now)
+		throw refuse('expiresAt', 'The expiry must be in the future.');
+	if (input.expiresAt && input.expiresAt > longest)
+		throw refuse(
+			'expiresAt',
+			`The module is valid for ${validityMonths} months; the expiry cannot be later than that.`
+		);
+	return { grantedAt: granted.toJSDate(), expiresAt: input.expiresAt ?? longest };
 }
 
-export type Grant = { userId: number; moduleId: number; grantedOn: string; note?: string };
-
-/** Grants a module; the expiry follows from its validity, counted in the facility's zone. */
-export async function grantCertification(actor: Actor, input: Grant, now = new Date()) {
+/**
+ * Records a certification. Nobody certifies themself; a trainer only the modules they teach.
+ * The person's open request for the module is closed and they are told what they can book
+ * now, in the same transaction.
+ */
+export async function grantCertification(actor: Actor, input: GrantInput, now = new Date()) {
 	const [module] = await db
 		.select()
 		.from(trainingModules)
 		.where(eq(trainingModules.id, input.moduleId));
 	if (!module) throw notFound('The training module');
+	if (input.userId === actor.id)
+		throw forbidden('Nobody can certify themself: ask another trainer or a manager.');
 	if (!(await mayCertify(actor, module.id))) {
 		throw forbidden(`Only a trainer who teaches “${module.name}” or a manager can certify it.`);
 	}
 	const [person] = await db
-		.select({ id: users.id, name: users.name, status: users.status })
+		.select({ id: users.id, name: users.name, email: users.email, status: users.status })
 		.from(users)
 		.where(eq(users.id, input.userId));
 	if (!person || person.status !== 'active') throw notFound('The person');
-
-	const granted = DateTime.fromISO(input.grantedOn, { zone: config.facilityTz }).startOf('day');
-	if (!granted.isValid) {
-		throw new ServiceError(400, 'Enter the training date.', {
-			fields: { grantedOn: 'Enter the training date.' }
-		});
-	}
-	if (granted.toJSDate() > now) {
-		const message = 'The training date cannot be in the future.';
-		throw new ServiceError(400, message, { fields: { grantedOn: message } });
-	}
-	const grantedAt = granted.toJSDate();
-	const expiresAt = granted.plus({ months: module.validityMonths }).toJSDate();
+	const { grantedAt, expiresAt } = grantTimes(input, module.validityMonths, now);
 
 	const prerequisites = await db
 		.select({ id: trainingModules.id, name: trainingModules.name })
@@ -208,8 +227,64 @@ export async function grantCertification(actor: Actor, input: Grant, now = new D
 			entityId: created.id,
 			details: { userId: person.id, moduleId: module.id, expiresAt: expiresAt.toISOString() }
 		});
-		return { id: created.id, grantedAt, expiresAt };
+		const requestId = await closeOpenRequest(tx, person.id, module.id, actor.id, now);
+		const told = certificationGranted({
+			to: person.name,
+			module: module.name,
+			expiresAt,
+			bookable: await bookableWith(tx, person.id, module.id, now)
+		});
+		await enqueue(tx, person, told.message, `certification:${created.id}:granted`, told.inApp);
+		return {
+			id: created.id,
+			userId: person.id,
+			moduleId: module.id,
+			moduleName: module.name,
+			grantedAt,
+			expiresAt,
+			requestId
+		};
 	});
+}
+
+/** The boxes needing `moduleId` that the person can book once it is held (read in `tx`). */
+async function bookableWith(tx: Transaction, userId: number, moduleId: number, now: Date) {
+	const needing = await tx
+		.select({ boxId: boxRequiredModules.boxId })
+		.from(boxRequiredModules)
+		.where(eq(boxRequiredModules.moduleId, moduleId));
+	if (!needing.length) return [];
+	const boxIds = needing.map((n) => n.boxId);
+	const [rows, required, live] = await Promise.all([
+		tx
+			.select({ id: boxes.id, name: boxes.name })
+			.from(boxes)
+			.where(inArray(boxes.id, boxIds))
+			.orderBy(asc(boxes.name)),
+		tx
+			.select({ boxId: boxRequiredModules.boxId, id: boxRequiredModules.moduleId })
+			.from(boxRequiredModules)
+			.where(inArray(boxRequiredModules.boxId, boxIds)),
+		tx
+			.select({ moduleId: certifications.moduleId })
+			.from(certifications)
+			.where(
+				and(
+					eq(certifications.userId, userId),
+					isNull(certifications.revokedAt),
+					gt(certifications.expiresAt, now)
+				)
+			)
+	]);
+	const held = new Set([moduleId, ...live.map((c) => c.moduleId)]);
+	const path = bookingPath(
+		rows.map((b) => ({
+			...b,
+			requiredModules: required.filter((r) => r.boxId === b.id).map((r) => ({ id: r.id, name: '' }))
+		})),
+		held
+	);
+	return path.boxes.filter((b) => !b.missing.length).map((b) => b.name);
 }
 
 export async function revokeCertification(actor: Actor, certificationId: number, reason: string) {
@@ -235,22 +310,6 @@ export async function revokeCertification(actor: Actor, certificationId: number,
 			details: { userId: cert.userId, moduleId: cert.moduleId, reason }
 		});
 	});
-}
-
-/** Modules the actor may certify (all for managers, their own for trainers). */
-export async function modulesTaughtBy(actor: Actor) {
-	if (hasRole(actor.role, 'manager')) {
-		return db
-			.select({ id: trainingModules.id, name: trainingModules.name })
-			.from(trainingModules)
-			.orderBy(asc(trainingModules.name));
-	}
-	return db
-		.select({ id: trainingModules.id, name: trainingModules.name })
-		.from(moduleTrainers)
-		.innerJoin(trainingModules, eq(trainingModules.id, moduleTrainers.moduleId))
-		.where(eq(moduleTrainers.userId, actor.id))
-		.orderBy(asc(trainingModules.name));
 }
 
 /** Users × modules, for managers and trainers: each cell the latest state. */
@@ -286,59 +345,4 @@ export async function certificationMatrix(now = new Date()) {
 			})
 		}))
 	};
-}
-
-export type ModuleInput = {
-	name: string;
-	description: string;
-	validityMonths: number;
-	prerequisiteIds: number[];
-	trainerIds: number[];
-};
-
-export async function createModule(actor: Actor, input: ModuleInput) {
-	if (!hasRole(actor.role, 'manager')) throw forbidden('Only a manager can add training modules.');
-	try {
-		return await transaction(async (tx) => {
-			const [created] = await tx
-				.insert(trainingModules)
-				.values({
-					name: input.name,
-					description: input.description,
-					validityMonths: input.validityMonths
-				})
-				.$returningId();
-			if (input.prerequisiteIds.length) {
-				await tx
-					.insert(modulePrerequisites)
-					.values(
-						input.prerequisiteIds.map((r) => ({ moduleId: created.id, requiresModuleId: r }))
-					);
-			}
-			if (input.trainerIds.length) {
-				const trainers = await tx
-					.select({ id: users.id })
-					.from(users)
-					.where(inArray(users.id, input.trainerIds));
-				if (trainers.length)
-					await tx
-						.insert(moduleTrainers)
-						.values(trainers.map((t) => ({ moduleId: created.id, userId: t.id })));
-			}
-			await audit(tx, {
-				actorId: actor.id,
-				action: 'module.created',
-				entity: 'training_module',
-				entityId: created.id,
-				details: { name: input.name }
-			});
-			return created.id;
-		});
-	} catch (e) {
-		if (isDuplicateKey(e)) {
-			const message = 'A module with this name exists.';
-			throw new ServiceError(409, message, { fields: { name: message } });
-		}
-		throw e;
-	}
 }
