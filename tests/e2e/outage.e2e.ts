@@ -36,6 +36,8 @@ test('a manager takes a box out of service; the member sees the cancellation and
 		.getByLabel('Reason (sent to everyone affected)')
 		.fill('Purifier regeneration, planned');
 	await page.getByRole('button', { name: 'Take out of service' }).click();
+	// It says whose booking it cancels before it does.
+	await page.getByRole('button', { name: 'Yes, take it out of service' }).click();
 	await expect(page.getByRole('status')).toContainText('1 booking was cancelled');
 	await page.getByRole('button', { name: 'Sign out' }).click();
 

@@ -31,7 +31,9 @@ describe('groups', () => {
 
 		const self = await pi.form(`/groups/${group.id}?/remove`, { userId: group.pi.id });
 		expect(self.status).toBe(409);
-		expect((await pi.form(`/groups/${group.id}?/remove`, { userId: person.id })).status).toBe(200);
+		expect(
+			(await pi.form(`/groups/${group.id}?/remove`, { userId: person.id, confirmed: 'yes' })).status
+		).toBe(200);
 		expect(await statusOf(group.id, person.id)).toBe('removed');
 	});
 

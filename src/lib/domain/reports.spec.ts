@@ -540,6 +540,37 @@ describe('glove wear', () => {
 		).toBe('ok');
 	});
 
+	it('counts a logged glove-inspection task on the box as a check of each of its gloves', () => {
+		// The weekly glove check of upkeep.ts, logged on 21 Mar: no inspection on the glove itself.
+		const w = gloveWear({
+			installedAt: at('2026-02-20T12:00:00Z'),
+			inspections: [],
+			boxChecks: [at('2026-03-21T09:00:00Z')],
+			bookings: month,
+			now
+		});
+		expect(w).toMatchObject({ daysSinceCheck: 4, flag: 'ok', reasons: [] });
+		expect(iso(w.lastInspectionAt!)).toBe('2026-03-21T09:00:00.000Z');
+		// One logged before the glove was fitted checked another glove: it does not count.
+		const older = gloveWear({
+			installedAt: at('2026-02-20T12:00:00Z'),
+			inspections: [],
+			boxChecks: [at('2026-02-19T09:00:00Z')],
+			bookings: month,
+			now
+		});
+		expect(older.reasons).toEqual(['Not inspected since it was fitted 33 days ago.']);
+		// The later of the two kinds of check is the last one.
+		const both = gloveWear({
+			installedAt: at('2026-02-20T12:00:00Z'),
+			inspections: [{ at: at('2026-03-22T12:00:00Z'), damaged: false, action: 'none' }],
+			boxChecks: [at('2026-03-01T09:00:00Z')],
+			bookings: month,
+			now
+		});
+		expect(iso(both.lastCheckAt)).toBe('2026-03-22T12:00:00.000Z');
+	});
+
 	it('asks for replacement after damage, until a report says it was replaced', () => {
 		const damaged = gloveWear({
 			installedAt: at('2026-03-01T12:00:00Z'),

@@ -379,6 +379,7 @@ export type GloveWear = {
 	/** Confirmed and completed hours on the box since the glove was fitted, up to now. */
 	bookedHours: number;
 	ageDays: number;
+	/** The last check since the fitting: an inspection of this glove, or a logged glove check of its box. */
 	lastInspectionAt: Date | null;
 	/** The last inspection, or the fitting when there has been none since. */
 	lastCheckAt: Date;
@@ -397,10 +398,16 @@ const plural = (n: number, word: string) => `${n} ${word}${n === 1 ? '' : 's'}`;
  * is due. Replace: damage reported (until a report says it was replaced) or GLOVE_DUE_MONTHS
  * of age (gloves.ts's rule, the one the box face uses). Inspect: no check for
  * INSPECTION_INTERVAL_DAYS, or more than INSPECT_AFTER_BOOKED_HOURS booked since the last.
+ *
+ * A check is an inspection recorded on the glove, or a glove-inspection maintenance task
+ * (upkeep.ts's `glove_inspection`) logged as done on its box: that routine check goes over
+ * every glove on the box, so it counts for each of them.
  */
 export function gloveWear(p: {
 	installedAt: Date;
 	inspections: WearInspection[];
+	/** When a glove-inspection task on the glove's box was logged as done. */
+	boxChecks?: Date[];
 	/** The box's bookings (any status; only WEAR_STATUSES count). */
 	bookings: (Interval & { status: BookingStatus })[];
 	now: Date;
@@ -408,10 +415,11 @@ export function gloveWear(p: {
 	const { installedAt, now } = p;
 	const worn = p.bookings.filter((b) => WEAR_STATUSES.includes(b.status));
 	const bookedSince = (from: Date) => worn.reduce((s, b) => s + hoursWithin(b, from, now), 0);
-	const last = p.inspections
-		.filter((i) => i.at >= installedAt && i.at <= now)
-		.reduce<WearInspection | null>((a, i) => (!a || i.at > a.at ? i : a), null);
-	const lastCheckAt = last?.at ?? installedAt;
+	const checks = [...p.inspections.map((i) => i.at), ...(p.boxChecks ?? [])];
+	const last = checks
+		.filter((at) => at >= installedAt && at <= now)
+		.reduce<Date | null>((a, at) => (!a || at > a ? at : a), null);
+	const lastCheckAt = last ?? installedAt;
 	const damaged = isDamaged(p.inspections);
 	const ageDays = Math.max(0, Math.floor((now.getTime() - installedAt.getTime()) / DAY_MS));
 	const daysSinceCheck = Math.max(0, Math.floor((now.getTime() - lastCheckAt.getTime()) / DAY_MS));
@@ -436,7 +444,7 @@ export function gloveWear(p: {
 	return {
 		bookedHours: bookedSince(installedAt),
 		ageDays,
-		lastInspectionAt: last?.at ?? null,
+		lastInspectionAt: last,
 		lastCheckAt,
 		daysSinceCheck,
 		bookedHoursSinceCheck,

@@ -90,29 +90,121 @@ export async function runForm<S extends z.ZodType, R extends object | void>(
 	request: Request,
 	schema: S,
 	call: (input: z.output<S>, form: FormData) => Promise<R>,
-	options: FormShape & {
-		form?: string;
-		/** For a form with structure of its own (repeated rows): its reading, echoed back. */
-		read?: (form: FormData) => Record<string, unknown>;
-	} = {}
+	options: RunOptions = {}
 ): Promise<ActionFailure<FormAnswer & { details?: unknown }> | ({ form?: string } & R)> {
+	const answer = await answerForm(request, schema, call, options);
+	return answer as Exclude<typeof answer, ConfirmAnswer>;
+}
+
+type RunOptions = FormShape & {
+	form?: string;
+	/** For a form with structure of its own (repeated rows): its reading, echoed back. */
+	read?: (form: FormData) => Record<string, unknown>;
+};
+
+/** What a destructive action will do, in words, before it is done. */
+export type Ask = {
+	/** The question: "Cancel this booking?" */
+	title: string;
+	/** The consequence: "This cancellation will be billed (inside 24 h of the start)." */
+	message: string;
+	/** What it touches, one line each: "Ada Lovelace, Tue 3 Mar, 09:00–11:00". */
+	details?: string[];
+	/** The button that goes ahead: "Yes, cancel it". */
+	yes: string;
+};
+
+/** The confirmation step's answer: the consequence, and the fields to post again. */
+export type Confirmation = Required<Ask> & {
+	/** The action to post to ("?/cancel"; "" for a page's default action). */
+	action: string;
+	/** The form's fields as posted, repeats kept, in order; never a password or `confirmed`. */
+	fields: [name: string, value: string][];
+};
+
+export type ConfirmAnswer = {
+	form?: string;
+	values: Record<string, string>;
+	confirm: Confirmation;
+};
+
+/** The field a confirmation step posts: present and "yes" means the person said yes. */
+export const CONFIRMED_FIELD = 'confirmed';
+
+/**
+ * runForm with a confirmation step, for actions that destroy or cancel something. Unless
+ * the form carries `confirmed=yes`, the input is read and checked as usual, then `ask`
+ * says what the action would do, and the answer is `{ form, values, confirm }` with
+ * nothing changed: the page shows the consequence and a button that posts the same fields
+ * again with `confirmed=yes`. `ask` answering null (nothing to confirm: an outage that
+ * cancels no booking, or a request the service will refuse anyway) goes straight on, and
+ * a refusal it throws answers like the service's own, so a step is never offered for an
+ * action that cannot happen. Works without JavaScript: it is all in the form post.
+ */
+export async function runConfirmedForm<S extends z.ZodType, R extends object | void>(
+	request: Request,
+	schema: S,
+	ask: (input: z.output<S>, form: FormData) => Promise<Ask | null> | Ask | null,
+	call: (input: z.output<S>, form: FormData) => Promise<R>,
+	options: RunOptions = {}
+): Promise<
+	ActionFailure<FormAnswer & { details?: unknown }> | ({ form?: string } & R) | ConfirmAnswer
+> {
+	return answerForm(request, schema, call, options, ask);
+}
+
+async function answerForm<S extends z.ZodType, R extends object | void>(
+	request: Request,
+	schema: S,
+	call: (input: z.output<S>, form: FormData) => Promise<R>,
+	options: RunOptions,
+	ask?: (input: z.output<S>, form: FormData) => Promise<Ask | null> | Ask | null
+): Promise<
+	ActionFailure<FormAnswer & { details?: unknown }> | ({ form?: string } & R) | ConfirmAnswer
+> {
 	const form = await request.formData();
+	const confirmed = ask ? form.get(CONFIRMED_FIELD) === 'yes' : false;
+	// The step's own field is not the schema's (strict schemas refuse unknown fields).
+	if (ask) form.delete(CONFIRMED_FIELD);
 	const input = options.read ? options.read(form) : formInput(form, options);
 	// A form with structure of its own gets its reading back, which its component reads.
 	const values = (options.read ? input : formValues(form)) as Record<string, string>;
+	const named = options.form ? { form: options.form } : {};
 	const parsed = schema.safeParse(input);
 	if (!parsed.success)
 		return fail(400, {
-			...(options.form ? { form: options.form } : {}),
+			...named,
 			values,
 			errors: fieldErrors(parsed.error),
 			message: 'Please correct the fields marked below.'
 		});
+	if (ask && !confirmed) {
+		const question = await attempt(async () => ask(parsed.data, form));
+		if (!question.ok) return refusedForm(values, question.error, options.form);
+		if (question.value)
+			return {
+				...named,
+				values,
+				confirm: {
+					...question.value,
+					details: question.value.details ?? [],
+					action: actionOf(request),
+					fields: [...form.entries()].flatMap(([name, value]): [string, string][] =>
+						typeof value === 'string' && !/password/i.test(name) ? [[name, value]] : []
+					)
+				}
+			};
+	}
 	const result = await attempt(() => call(parsed.data, form));
 	if (!result.ok) return refusedForm(values, result.error, options.form);
-	return { ...(options.form ? { form: options.form } : {}), ...(result.value ?? {}) } as {
-		form?: string;
-	} & R;
+	return { ...named, ...(result.value ?? {}) } as { form?: string } & R;
+}
+
+/** The named action a form was posted to ("?/cancel"), or "" for the default action. */
+function actionOf(request: Request): string {
+	const search = new URL(request.url).search;
+	const name = /^\?\/([\w-]+)/.exec(search)?.[1];
+	return name ? `?/${name}` : '';
 }
 
 /**

@@ -22,6 +22,8 @@ const rate = z.coerce
 	.max(MAX_RATE, 'That rate is implausibly high.');
 
 export const portSchema = z.object({
+	/** An existing port's id, so an edit keeps it (and its gloves); absent for a new port. */
+	id: z.coerce.number().int().positive().optional(),
 	position: z.string().trim().min(1, 'Name the port’s position.').max(40),
 	diameterMm: z.coerce
 		.number({ error: 'Enter the port diameter in mm.' })
@@ -75,7 +77,17 @@ export const boxSchema = z
 		noShowGraceMin: minutes('the check-in grace time', 5, 240).default(15),
 		excludedClasses: z.array(z.enum(chemicalClassKeys as [string, ...string[]])).default([]),
 		requiredModuleIds: z.array(z.coerce.number().int().positive()).default([]),
-		ports: z.array(portSchema).max(12, 'At most 12 ports.').default([])
+		ports: z
+			.array(portSchema)
+			.max(12, 'At most 12 ports.')
+			.default([])
+			.refine(
+				(ports) => {
+					const ids = ports.flatMap((p) => (p.id === undefined ? [] : [p.id]));
+					return new Set(ids).size === ids.length;
+				},
+				{ message: 'Each port appears once.' }
+			)
 	})
 	.superRefine((v, ctx) => {
 		if (v.o2AlarmPpm < v.o2WarnPpm)
@@ -114,12 +126,20 @@ export type BoxInput = z.output<typeof boxSchema>;
 
 /** Reads the box form (repeated port fields, checkboxes) into the schema's shape. */
 export function boxFormToInput(form: FormData): Record<string, unknown> {
+	// A port's fields come in rows of three, in order: its id (empty for a new one), position, diameter.
+	const ids = form.getAll('portId').map(String);
 	const positions = form.getAll('portPosition').map(String);
 	const diameters = form.getAll('portDiameterMm').map(String);
 	const fields = Object.fromEntries(
 		[...form.entries()].filter(
 			([k]) =>
-				!['portPosition', 'portDiameterMm', 'excludedClasses', 'requiredModuleIds'].includes(k)
+				![
+					'portId',
+					'portPosition',
+					'portDiameterMm',
+					'excludedClasses',
+					'requiredModuleIds'
+				].includes(k)
 		)
 	);
 	return {
@@ -129,7 +149,11 @@ export function boxFormToInput(form: FormData): Record<string, unknown> {
 		excludedClasses: form.getAll('excludedClasses').map(String),
 		requiredModuleIds: form.getAll('requiredModuleIds').map(String),
 		ports: positions
-			.map((position, i) => ({ position, diameterMm: diameters[i] ?? '' }))
+			.map((position, i) => ({
+				...(ids[i]?.trim() ? { id: ids[i].trim() } : {}),
+				position,
+				diameterMm: diameters[i] ?? ''
+			}))
 			.filter((p) => p.position.trim() !== '' || p.diameterMm.trim() !== '')
 	};
 }

@@ -27,3 +27,24 @@ export function formFields(
 		message: typeof answer.message === 'string' ? answer.message : undefined
 	};
 }
+
+/** A confirmation step's answer (see runConfirmedForm in $lib/server/forms). */
+export type Confirmation = {
+	title: string;
+	message: string;
+	details: string[];
+	yes: string;
+	action: string;
+	fields: [string, string][];
+};
+
+/**
+ * The confirmation the action answered for the form named `name` (any form of the page
+ * when `name` is omitted), or null when it answered something else.
+ */
+export function confirmationOf(form: unknown, name?: string): Confirmation | null {
+	const answer = (form ?? null) as { form?: unknown; confirm?: unknown } | null;
+	if (!answer || typeof answer.confirm !== 'object' || answer.confirm === null) return null;
+	if (name !== undefined && answer.form !== name) return null;
+	return answer.confirm as Confirmation;
+}

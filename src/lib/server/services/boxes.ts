@@ -175,18 +175,87 @@ export async function boxOutages(boxId: number, limit = 20) {
 		.limit(limit);
 }
 
-async function writeParts(tx: Transaction, boxId: number, input: BoxInput) {
-	await tx.delete(boxPorts).where(eq(boxPorts.boxId, boxId));
-	if (input.ports.length) {
+/**
+ * The box's ports as the form lists them, kept by id: a listed port is updated in place
+ * (its gloves, inspections and glove changes stay with it), a port without an id is added,
+ * and only a port no longer listed is deleted, with its gloves' records. A port with a
+ * glove change under way is not removed: the change would lose its port.
+ */
+async function writePorts(tx: Transaction, boxId: number, ports: BoxInput['ports']) {
+	const existing = await tx
+		.select({ id: boxPorts.id, position: boxPorts.position })
+		.from(boxPorts)
+		.where(eq(boxPorts.boxId, boxId));
+	const known = new Set(existing.map((p) => p.id));
+	if (ports.some((p) => p.id !== undefined && !known.has(p.id))) {
+		const message = 'A port in the list is not on this box; reload the page and try again.';
+		throw new ServiceError(409, message, { fields: { ports: message } });
+	}
+	const listed = new Set(ports.map((p) => p.id));
+	const removed = existing.filter((p) => !listed.has(p.id));
+	if (removed.length) {
+		const [open] = await tx
+			.select({ portId: gloveChanges.portId })
+			.from(gloveChanges)
+			.where(
+				and(
+					inArray(
+						gloveChanges.portId,
+						removed.map((p) => p.id)
+					),
+					eq(gloveChanges.status, 'open')
+				)
+			)
+			.limit(1);
+		if (open) {
+			const position = removed.find((p) => p.id === open.portId)?.position ?? 'a';
+			const message = `A glove change is under way on the ${position} port: complete or abandon it before removing the port.`;
+			throw new ServiceError(409, message, { fields: { ports: message } });
+		}
+		await tx.delete(boxPorts).where(
+			inArray(
+				boxPorts.id,
+				removed.map((p) => p.id)
+			)
+		);
+	}
+	for (const [sortOrder, p] of ports.entries()) {
+		if (p.id === undefined) continue;
+		await tx
+			.update(boxPorts)
+			.set({ position: p.position, diameterMm: p.diameterMm, sortOrder })
+			.where(and(eq(boxPorts.id, p.id), eq(boxPorts.boxId, boxId)));
+	}
+	const added = [...ports.entries()].filter(([, p]) => p.id === undefined);
+	if (added.length) {
 		await tx.insert(boxPorts).values(
-			input.ports.map((p, i) => ({
+			added.map(([sortOrder, p]) => ({
 				boxId,
 				position: p.position,
 				diameterMm: p.diameterMm,
-				sortOrder: i
+				sortOrder
 			}))
 		);
 	}
+	return removed.map((p) => p.position);
+}
+
+/** The ports an edit would remove that have a glove fitted: their records go with them. */
+export async function portsLosingGloves(boxId: number, ports: BoxInput['ports']) {
+	const listed = new Set(ports.map((p) => p.id));
+	const rows = await db
+		.select({ id: boxPorts.id, position: boxPorts.position, gloveId: gloves.id })
+		.from(boxPorts)
+		.leftJoin(gloves, and(eq(gloves.portId, boxPorts.id), isNull(gloves.removedAt)))
+		.where(eq(boxPorts.boxId, boxId))
+		.orderBy(asc(boxPorts.sortOrder), asc(boxPorts.id));
+	return rows
+		.filter((r) => !listed.has(r.id))
+		.map((r) => ({ position: r.position, glove: r.gloveId !== null }));
+}
+
+async function writeParts(tx: Transaction, boxId: number, input: BoxInput) {
+	const removedPorts = await writePorts(tx, boxId, input.ports);
 	await tx.delete(boxRequiredModules).where(eq(boxRequiredModules.boxId, boxId));
 	if (input.requiredModuleIds.length) {
 		const known = await tx
@@ -201,6 +270,7 @@ async function writeParts(tx: Transaction, boxId: number, input: BoxInput) {
 			.insert(boxRequiredModules)
 			.values([...new Set(input.requiredModuleIds)].map((moduleId) => ({ boxId, moduleId })));
 	}
+	return removedPorts;
 }
 
 function columns(input: BoxInput) {
@@ -238,8 +308,14 @@ export async function updateBox(actor: Actor, id: number, input: BoxInput): Prom
 		await transaction(async (tx) => {
 			await lockBox(tx, id);
 			await tx.update(boxes).set(columns(input)).where(eq(boxes.id, id));
-			await writeParts(tx, id, input);
-			await audit(tx, { actorId: actor.id, action: 'box.updated', entity: 'box', entityId: id });
+			const removedPorts = await writeParts(tx, id, input);
+			await audit(tx, {
+				actorId: actor.id,
+				action: 'box.updated',
+				entity: 'box',
+				entityId: id,
+				details: removedPorts.length ? { removedPorts } : undefined
+			});
 			// New warn or alarm levels may put the box into alarm or take it out at once.
 			await resettle(tx, id, actor.id);
 		});

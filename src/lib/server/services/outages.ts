@@ -1,80 +1,27 @@
-import { and, asc, eq, gt, inArray, lt, sql } from 'drizzle-orm';
-import { holdOverlaps } from '$lib/domain/booking-rules';
-import { openStatuses, type OutageKind } from '$lib/domain/bookings';
-import { hasRole } from '$lib/domain/roles';
-import { db, type Transaction } from '../db';
-import type { Database } from '../db/connect';
-import { startsFrom } from '../db/queries';
-import { bookings, boxes, gloveChanges, outages, outbox, users, type Box } from '../db/schema';
+import { eq, inArray, sql } from 'drizzle-orm';
+import type { OutageKind } from '$lib/domain/bookings';
+import type { Transaction } from '../db';
+import { bookings, gloveChanges, outages, type Box } from '../db/schema';
 import { bookingCancelled } from '../mail/messages';
 import { enqueueMany, type Outgoing } from '../mail/outbox';
 import type { Actor } from './accounts';
 import { audit } from './audit';
 import { alternativeFinder } from './alternatives';
-import { forbidden, notFound, ServiceError } from './errors';
+import { notFound, ServiceError } from './errors';
+import { cancellationKey, mustManage, overlapping, refuseOpenChange } from './outage-reads';
 import { transaction } from '../db/transaction';
 import { lockBox } from '../db/locks';
 
+// The read side (previews, what an outage cancelled) lives in outage-reads.ts.
+export {
+	cancelledBy,
+	outageDetail,
+	previewEnd,
+	previewExtension,
+	previewOutage
+} from './outage-reads';
+
 export type OutageInput = { start: Date; end: Date; kind: OutageKind; reason: string };
-
-function mustManage(actor: Actor, message = 'Only a manager can take a box out of service.') {
-	if (!hasRole(actor.role, 'manager')) throw forbidden(message);
-}
-
-/**
- * The open bookings on the box whose hold [start_at, blocked_until) overlaps [start, end):
- * holdOverlaps of $lib/domain/booking-rules, the rule that also refuses a new booking, so an
- * outage starting in a purge buffer cancels its booking. The SQL selects by that span, the
- * predicate decides. With `lock`, the rows read are locked for the caller's transaction.
- */
-async function overlapping(
-	q: Database | Transaction,
-	boxId: number,
-	start: Date,
-	end: Date,
-	lock: boolean
-) {
-	const query = q
-		.select({
-			id: bookings.id,
-			startAt: bookings.startAt,
-			endAt: bookings.endAt,
-			blockedUntil: bookings.blockedUntil,
-			purpose: bookings.purpose,
-			sequence: bookings.sequence,
-			userId: users.id,
-			email: users.email,
-			name: users.name
-		})
-		.from(bookings)
-		.innerJoin(users, eq(users.id, bookings.userId))
-		.where(
-			and(
-				eq(bookings.boxId, boxId),
-				inArray(bookings.status, openStatuses),
-				// From a point on (box_id, start_at): only the rows read are locked.
-				startsFrom(start),
-				lt(bookings.startAt, end),
-				gt(bookings.blockedUntil, start)
-			)
-		)
-		.orderBy(asc(bookings.startAt));
-	const rows = await (lock ? query.for('update') : query);
-	return rows.filter((b) => holdOverlaps(b, { startAt: start, endAt: end }));
-}
-
-/** What an outage over [start, end) would cancel, by person and time; changes nothing. */
-export async function previewOutage(
-	actor: Actor,
-	boxId: number,
-	window: { start: Date; end: Date }
-) {
-	mustManage(actor);
-	const [box] = await db.select({ id: boxes.id }).from(boxes).where(eq(boxes.id, boxId));
-	if (!box) throw notFound('The box');
-	const rows = await overlapping(db, boxId, window.start, window.end, false);
-	return rows.map((b) => ({ id: b.id, userName: b.name, start: b.startAt, end: b.endAt }));
-}
 
 /**
  * Cancels every pending or confirmed booking on the (locked) box that overlaps [start,
@@ -136,9 +83,6 @@ async function cancelOverlapping(
 	await enqueueMany(tx, outgoing);
 	return ids;
 }
-
-const cancellationKey = (bookingId: number, sequence: number) =>
-	`booking:${bookingId}:cancelled:${sequence}`;
 
 /** Takes a box out of service; every overlapping booking is cancelled and its holder told. */
 export async function createOutage(
@@ -306,34 +250,48 @@ export async function extendOutage(actor: Actor, outageId: number, end: Date, no
 	});
 }
 
-/** Ends an outage now: the box is back in service. Cancelled bookings stay cancelled. */
+/**
+ * Ends an outage now: the box is back in service. One that has not begun is withdrawn
+ * instead (closeOutage). Cancelled bookings stay cancelled. The answer is the outage as it
+ * stood, with `withdrawn` saying which it was.
+ */
 export async function endOutage(actor: Actor, outageId: number, now = new Date()) {
 	mustManage(actor, 'Only a manager can end an outage.');
 	return transaction(async (tx) => {
-		await lockOutage(tx, outageId);
-		const [open] = await tx
-			.select({ id: gloveChanges.id })
-			.from(gloveChanges)
-			.where(and(eq(gloveChanges.outageId, outageId), eq(gloveChanges.status, 'open')));
-		if (open)
-			throw new ServiceError(
-				409,
-				'A glove change on this outage is still open: complete or abandon it first.',
-				{ changeId: open.id }
-			);
-		await closeOutage(tx, actor, outageId, now);
+		const { outage: before } = await lockOutage(tx, outageId);
+		await refuseOpenChange(tx, outageId);
+		const what = await closeOutage(tx, actor, outageId, now);
+		if (what === 'withdrawn') return { ...before, withdrawn: true };
 		const [outage] = await tx.select().from(outages).where(eq(outages.id, outageId));
-		return outage;
+		return { ...outage, withdrawn: false };
 	});
 }
 
 /**
  * Ends an outage inside the caller's transaction (a completed glove change, a finished
  * maintenance task): it locks the box first (a no-op when the caller already holds it).
+ *
+ * An outage that has not begun yet is withdrawn: its row is deleted, so the calendar, the
+ * feeds and the booking rules stop seeing it at once (ending it "now" would leave an empty
+ * span at its start that still refuses bookings across that instant and still looks live).
+ * The bookings it cancelled stay cancelled, their holders already told, and lose the link
+ * to it (ON DELETE SET NULL), as do a maintenance task's plan and log; what it was and what
+ * it cancelled stay in the audit entry. A glove change begins its outage when it starts,
+ * so one with a change on it is ended, never withdrawn (its record keeps the change).
  */
-export async function closeOutage(tx: Transaction, actor: Actor, outageId: number, now: Date) {
+export async function closeOutage(
+	tx: Transaction,
+	actor: Actor,
+	outageId: number,
+	now: Date
+): Promise<'ended' | 'withdrawn'> {
 	const { outage: current } = await lockOutage(tx, outageId);
 	if (current.endAt <= now) throw new ServiceError(409, 'This outage has already ended.');
+	if (current.startAt > now && !(await hasGloveChange(tx, outageId))) {
+		await withdrawOutage(tx, actor, current);
+		return 'withdrawn';
+	}
+	// A change's outage starts when the change does; a clock a moment behind still ends it.
 	const endAt = current.startAt > now ? current.startAt : now;
 	await tx
 		.update(outages)
@@ -346,55 +304,36 @@ export async function closeOutage(tx: Transaction, actor: Actor, outageId: numbe
 		entityId: outageId,
 		details: { endAt: endAt.toISOString() }
 	});
+	return 'ended';
 }
 
-/** The bookings an outage cancelled, by person and time, with their e-mail's delivery. */
-export async function cancelledBy(outageId: number) {
-	const rows = await db
-		.select({
-			id: bookings.id,
-			startAt: bookings.startAt,
-			endAt: bookings.endAt,
-			sequence: bookings.sequence,
-			userName: users.name,
-			email: users.email
-		})
-		.from(bookings)
-		.innerJoin(users, eq(users.id, bookings.userId))
-		.where(eq(bookings.outageId, outageId))
-		.orderBy(asc(bookings.startAt));
-	const keys = rows.map((b) => cancellationKey(b.id, b.sequence));
-	const messages = keys.length
-		? await db
-				.select({ key: outbox.dedupeKey, status: outbox.status, sentAt: outbox.sentAt })
-				.from(outbox)
-				.where(inArray(outbox.dedupeKey, keys))
-		: [];
-	return rows.map((b) => {
-		const message = messages.find((m) => m.key === cancellationKey(b.id, b.sequence));
-		return {
-			id: b.id,
-			startAt: b.startAt,
-			endAt: b.endAt,
-			userName: b.userName,
-			email: b.email,
-			delivery: message?.status ?? null,
-			sentAt: message?.sentAt ?? null
-		};
-	});
-}
-
-/** An outage with its box, the glove changes on it and the bookings it cancelled. */
-export async function outageDetail(outageId: number) {
-	const [row] = await db
-		.select({ outage: outages, boxName: boxes.name, gas: boxes.gas })
-		.from(outages)
-		.innerJoin(boxes, eq(boxes.id, outages.boxId))
-		.where(eq(outages.id, outageId));
-	if (!row) throw notFound('The outage');
-	const changes = await db
-		.select({ id: gloveChanges.id, status: gloveChanges.status, portId: gloveChanges.portId })
+async function hasGloveChange(tx: Transaction, outageId: number) {
+	const [change] = await tx
+		.select({ id: gloveChanges.id })
 		.from(gloveChanges)
-		.where(eq(gloveChanges.outageId, outageId));
-	return { ...row, changes, cancelled: await cancelledBy(outageId) };
+		.where(eq(gloveChanges.outageId, outageId))
+		.limit(1);
+	return change !== undefined;
+}
+
+async function withdrawOutage(tx: Transaction, actor: Actor, outage: typeof outages.$inferSelect) {
+	const cancelled = await tx
+		.select({ id: bookings.id })
+		.from(bookings)
+		.where(eq(bookings.outageId, outage.id));
+	await tx.delete(outages).where(eq(outages.id, outage.id));
+	await audit(tx, {
+		actorId: actor.id,
+		action: 'outage.withdrawn',
+		entity: 'outage',
+		entityId: outage.id,
+		details: {
+			boxId: outage.boxId,
+			kind: outage.kind,
+			reason: outage.reason,
+			start: outage.startAt.toISOString(),
+			end: outage.endAt.toISOString(),
+			cancelledBookingIds: cancelled.map((b) => b.id)
+		}
+	});
 }

@@ -1,6 +1,6 @@
 // The manager's reports over whole ISO weeks: the rows are read here, bounded by the range
 // on indexed columns; the interval arithmetic is in $lib/domain/reports.
-import { and, asc, eq, gt, inArray, isNull, lt, or } from 'drizzle-orm';
+import { and, asc, eq, gt, gte, inArray, isNull, lt, lte, or } from 'drizzle-orm';
 import type { Gas } from '$lib/domain/boxes';
 import { outageKindLabel, type OutageKind } from '$lib/domain/bookings';
 import type { GloveMaterial } from '$lib/domain/gloves';
@@ -28,6 +28,8 @@ import {
 	boxPorts,
 	gloveInspections,
 	gloves,
+	maintenanceLog,
+	maintenanceTasks,
 	outages,
 	researchGroups
 } from '../db/schema';
@@ -195,8 +197,10 @@ type FittedRow = {
 };
 
 /**
- * Wear of each fitted glove as of `now`: its inspections, and the worn bookings on its box
- * since the oldest glove there was fitted — one (box_id, start_at) range per box.
+ * Wear of each fitted glove as of `now`: its inspections, the glove checks logged on its box
+ * (glove-inspection maintenance tasks done, which go over every glove there), and the worn
+ * bookings on its box since the oldest glove there was fitted — one (box_id, start_at) range
+ * per box.
  */
 async function wearOf(rows: FittedRow[], now: Date): Promise<Map<number, GloveWear>> {
 	const fitted = rows.filter(
@@ -209,7 +213,7 @@ async function wearOf(rows: FittedRow[], now: Date): Promise<Map<number, GloveWe
 		const seen = oldest.get(g.boxId);
 		if (!seen || g.installedAt < seen) oldest.set(g.boxId, g.installedAt);
 	}
-	const [inspections, worn] = await Promise.all([
+	const [inspections, boxChecks, worn] = await Promise.all([
 		db
 			.select({
 				gloveId: gloveInspections.gloveId,
@@ -222,6 +226,21 @@ async function wearOf(rows: FittedRow[], now: Date): Promise<Map<number, GloveWe
 				inArray(
 					gloveInspections.gloveId,
 					fitted.map((g) => g.gloveId)
+				)
+			),
+		db
+			.select({ boxId: maintenanceTasks.boxId, at: maintenanceLog.doneAt })
+			.from(maintenanceLog)
+			.innerJoin(maintenanceTasks, eq(maintenanceTasks.id, maintenanceLog.taskId))
+			.where(
+				and(
+					eq(maintenanceTasks.kind, 'glove_inspection'),
+					or(
+						...[...oldest].map(([boxId, since]) =>
+							and(eq(maintenanceTasks.boxId, boxId), gte(maintenanceLog.doneAt, since))
+						)
+					),
+					lte(maintenanceLog.doneAt, now)
 				)
 			),
 		db
@@ -246,12 +265,14 @@ async function wearOf(rows: FittedRow[], now: Date): Promise<Map<number, GloveWe
 	]);
 	const onBox = groupBy(worn, (b) => b.boxId);
 	const ofGlove = groupBy(inspections, (i) => i.gloveId);
+	const checksOn = groupBy(boxChecks, (c) => c.boxId);
 	return new Map(
 		fitted.map((g) => [
 			g.gloveId,
 			gloveWear({
 				installedAt: g.installedAt,
 				inspections: ofGlove.get(g.gloveId) ?? [],
+				boxChecks: (checksOn.get(g.boxId) ?? []).map((c) => c.at),
 				bookings: onBox.get(g.boxId) ?? [],
 				now
 			})

@@ -2,7 +2,14 @@ import { error } from '@sveltejs/kit';
 import { DateTime } from 'luxon';
 import { config } from '$lib/server/config';
 import { requireRole, requireUser } from '$lib/server/guard';
-import { endOutage, extendOutage, createOutage } from '$lib/server/services/outages';
+import {
+	createOutage,
+	endOutage,
+	extendOutage,
+	previewEnd,
+	previewExtension,
+	previewOutage
+} from '$lib/server/services/outages';
 import { gloveHistory, glovesOfBox } from '$lib/server/services/gloves';
 import { hasRole } from '$lib/domain/roles';
 import { idParam } from '$lib/server/params';
@@ -12,7 +19,8 @@ import { latestReadings, recordReading } from '$lib/server/services/atmosphere';
 import { documentsFor, mayManageDocuments } from '$lib/server/services/documents';
 import { readingSchema } from '$lib/validation/readings';
 import { endOutageSchema, moveOutageSchema, outageSchema } from '$lib/validation/outages';
-import { runForm } from '$lib/server/forms';
+import { runConfirmedForm, runForm, type Ask } from '$lib/server/forms';
+import { formatDateTime, formatRange } from '$lib/domain/time';
 import type { Actions, PageServerLoad } from './$types';
 
 export const load: PageServerLoad = async (event) => {
@@ -42,7 +50,12 @@ export const load: PageServerLoad = async (event) => {
 		rates: { internal: box.rateInternal, external: box.rateExternal },
 		volumeL: box.volumeL,
 		description: box.description,
-		outages: (await boxOutages(id)).map((o) => ({ ...o, active: o.endAt > new Date() })),
+		// Not begun yet: "End now" withdraws it instead (services/outages.ts closeOutage).
+		outages: (await boxOutages(id)).map((o) => ({
+			...o,
+			active: o.endAt > new Date(),
+			begun: o.startAt <= new Date()
+		})),
 		// Notes on readings are for the managers they were sent to.
 		readings: (await latestReadings(id, 8)).map((r) => ({
 			id: r.id,
@@ -96,9 +109,16 @@ export const actions: Actions = {
 	outage: async (event) => {
 		const actor = requireRole(event, 'manager');
 		const boxId = idParam(event.params.id, 'The box');
-		return runForm(
+		return runConfirmedForm(
 			event.request,
 			outageSchema,
+			// Nothing to confirm when no booking overlaps: nobody loses anything.
+			async ({ start, end }) =>
+				cancelling(
+					await previewOutage(actor, boxId, { start, end }),
+					`Take the box out of service ${formatRange(start, end, config.facilityTz)}?`,
+					'Yes, take it out of service'
+				),
 			async (input) => ({
 				cancelled: (await createOutage(actor, boxId, input)).cancelledBookingIds.length
 			}),
@@ -107,21 +127,48 @@ export const actions: Actions = {
 	},
 	endOutage: async (event) => {
 		const actor = requireRole(event, 'manager');
-		return runForm(
+		const boxId = idParam(event.params.id, 'The box');
+		return runConfirmedForm(
 			event.request,
 			endOutageSchema,
 			async ({ outageId }) => {
-				await endOutage(actor, outageId);
-				return { ended: true };
+				const { what, outage, cancelledCount } = await previewEnd(actor, outageId);
+				const kept =
+					cancelledCount === 1
+						? ' The booking it cancelled stays cancelled; its holder can book again.'
+						: cancelledCount
+							? ` The ${cancelledCount} bookings it cancelled stay cancelled; their holders can book again.`
+							: '';
+				return what === 'withdrawn'
+					? {
+							title: 'Withdraw this planned outage?',
+							message: `It has not begun (${formatRange(outage.startAt, outage.endAt, config.facilityTz)}): it is removed, and the box stays in service.${kept}`,
+							yes: 'Yes, withdraw it'
+						}
+					: {
+							title: 'End this outage now?',
+							message: `This ends the outage now and puts the box back in service.${await stillSealed(boxId)}${kept}`,
+							yes: 'Yes, end it now'
+						};
 			},
+			async ({ outageId }) => ({
+				ended: true,
+				withdrawn: (await endOutage(actor, outageId)).withdrawn
+			}),
 			{ form: 'end' }
 		);
 	},
 	extendOutage: async (event) => {
 		const actor = requireRole(event, 'manager');
-		return runForm(
+		return runConfirmedForm(
 			event.request,
 			moveOutageSchema,
+			async ({ outageId, end }) =>
+				cancelling(
+					await previewExtension(actor, outageId, end),
+					`Move the outage’s end to ${formatDateTime(end, config.facilityTz)}?`,
+					'Yes, move the end'
+				),
 			async ({ outageId, end }) => ({
 				cancelled: (await extendOutage(actor, outageId, end)).cancelledBookingIds.length
 			}),
@@ -129,3 +176,28 @@ export const actions: Actions = {
 		);
 	}
 };
+
+/** Ports left sealed after an abandoned change stay sealed when the box returns to service. */
+async function stillSealed(boxId: number) {
+	const sealed = (await glovesOfBox(boxId)).filter((g) => g.sealed && !g.openChangeId);
+	if (!sealed.length) return '';
+	const ports = sealed.map((g) => g.port.position).join(' and ');
+	return ` The ${ports} ${sealed.length === 1 ? 'port stays' : 'ports stay'} sealed with ${sealed.length === 1 ? 'its cover' : 'their covers'}.`;
+}
+
+const bookingsWord = (n: number) => (n === 1 ? '1 booking' : `${n} bookings`);
+
+/** The question for an outage that cancels bookings, each by person and time; null for none. */
+function cancelling(
+	hit: { userName: string; start: Date; end: Date }[],
+	title: string,
+	yes: string
+): Ask | null {
+	if (!hit.length) return null;
+	return {
+		title,
+		message: `This cancels ${bookingsWord(hit.length)}; each holder is told by e-mail and in Boxwright.`,
+		details: hit.map((b) => `${b.userName}, ${formatRange(b.start, b.end, config.facilityTz)}`),
+		yes
+	};
+}

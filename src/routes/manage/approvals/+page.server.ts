@@ -4,7 +4,9 @@ import { decideBooking, pendingBookings } from '$lib/server/services/bookings';
 import { approveAccount, declineAccount, pendingAccountsFor } from '$lib/server/services/accounts';
 import { decisionSchema } from '$lib/validation/account';
 import { approveBookingSchema, declineSchema } from '$lib/validation/bookings';
-import { runForm } from '$lib/server/forms';
+import { runConfirmedForm, runForm } from '$lib/server/forms';
+import { formatRange } from '$lib/domain/time';
+import { config } from '$lib/server/config';
 import type { Actions, PageServerLoad, RequestEvent } from './$types';
 
 export const load: PageServerLoad = async (event) => {
@@ -27,7 +29,27 @@ async function decide(event: RequestEvent, decision: typeof approveAccount) {
 
 export const actions: Actions = {
 	approve: (event) => decide(event, approveAccount),
-	decline: (event) => decide(event, declineAccount),
+	decline: async (event) => {
+		const user = await requirePiOrRole(event, 'manager');
+		return runConfirmedForm(
+			event.request,
+			decisionSchema,
+			async ({ userId }) => {
+				const row = (await pendingAccountsFor(user)).find((r) => r.userId === userId);
+				return {
+					title: row ? `Decline ${row.name}’s registration?` : 'Decline this registration?',
+					message: row
+						? `The account (${row.email}, asking to join ${row.groupName}) is deleted; they may register again.`
+						: 'The account is deleted; they may register again.',
+					yes: 'Yes, decline it'
+				};
+			},
+			async ({ userId }) => {
+				await declineAccount(user, userId);
+				return { decided: userId };
+			}
+		);
+	},
 	approveBooking: async (event) => {
 		const user = requireRole(event, 'manager');
 		return runForm(event.request, approveBookingSchema, async ({ bookingId }) => {
@@ -37,9 +59,24 @@ export const actions: Actions = {
 	},
 	declineBooking: async (event) => {
 		const user = requireRole(event, 'manager');
-		return runForm(event.request, declineSchema, async ({ bookingId, reason }) => {
-			await decideBooking(user, bookingId, 'decline', reason);
-			return { bookingDecided: bookingId };
-		});
+		return runConfirmedForm(
+			event.request,
+			declineSchema,
+			async ({ bookingId }) => {
+				const b = (await pendingBookings()).find((x) => x.id === bookingId);
+				return b
+					? {
+							title: `Decline ${b.userName}’s booking on ${b.boxName}, ${formatRange(b.startAt, b.endAt, config.facilityTz)}?`,
+							message:
+								'The booking is cancelled and the time freed; they see your reason on their bookings. It is not billed.',
+							yes: 'Yes, decline it'
+						}
+					: null;
+			},
+			async ({ bookingId, reason }) => {
+				await decideBooking(user, bookingId, 'decline', reason);
+				return { bookingDecided: bookingId };
+			}
+		);
 	}
 };

@@ -15,7 +15,8 @@ import {
 	tasksOf,
 	updateTask
 } from '$lib/server/services/maintenance';
-import { formId, runForm } from '$lib/server/forms';
+import { formId, runConfirmedForm, runForm } from '$lib/server/forms';
+import { formatRange } from '$lib/domain/time';
 import {
 	editTaskSchema,
 	planOutageSchema,
@@ -101,9 +102,22 @@ export const actions: Actions = {
 	},
 	retire: async (event) => {
 		const actor = requireRole(event, 'manager');
-		return runForm(
+		const boxId = idParam(event.params.id, 'The box');
+		return runConfirmedForm(
 			event.request,
 			retireTaskSchema,
+			async ({ taskId }) => {
+				const task = (await tasksOf(boxId)).find((t) => t.id === taskId);
+				const planned =
+					task?.plannedStartAt && task.plannedEndAt && task.plannedEndAt > new Date()
+						? ` Its planned outage ${formatRange(task.plannedStartAt, task.plannedEndAt, config.facilityTz)} still stands; withdraw it on the box page if it is no longer needed.`
+						: '';
+				return {
+					title: task ? `Retire “${task.title}”?` : 'Retire this task?',
+					message: `It leaves the schedule: it is no longer due and nobody is reminded. What was logged stays.${planned}`,
+					yes: 'Yes, retire it'
+				};
+			},
 			async ({ taskId }) => {
 				await retireTask(actor, taskId);
 				return { retired: true };
