@@ -1,7 +1,11 @@
 import { describe, expect, it } from 'vitest';
+import { weeklySlots } from './bookings';
 import {
+	boxBlockers,
 	checkBooking,
 	holdOverlaps,
+	missingTimeReason,
+	spanIsFree,
 	minutesPerIsoWeek,
 	purgeEnd,
 	quotaSpan,
@@ -363,6 +367,125 @@ describe('one overlap rule: a booking holds the box until its purge ends', () =>
 		expect(result.reasons.map((r) => r.code)).toEqual(['overlaps_purge']);
 		expect(result.conflicts).toEqual([
 			{ kind: 'purge', id: 6, start: at('2026-12-02T11:00:00Z'), end: at('2026-12-02T11:30:00Z') }
+		]);
+	});
+});
+
+describe('moving a booking (PATCH /api/bookings/:id)', () => {
+	// The booking under way: it started 07:00 Berlin (06:00Z), before "now" (08:00 Berlin).
+	const running = { start: at('2026-12-01T06:00:00Z') };
+
+	it('lets a booking under way keep its start while its end changes', () => {
+		const longer = request({ start: running.start, end: at('2026-12-01T09:00:00Z') });
+		expect(codes(longer, context())).toEqual(['start_in_past']);
+		expect(codes(longer, context({ current: running }))).toEqual([]);
+	});
+
+	it('still refuses moving the start into the past', () => {
+		const earlier = request({
+			start: at('2026-12-01T05:00:00Z'),
+			end: at('2026-12-01T07:00:00Z')
+		});
+		expect(codes(earlier, context({ current: running }))).toEqual(['start_in_past']);
+	});
+});
+
+describe('spanIsFree: what a watch waits for', () => {
+	const span = { startAt: at('2026-12-02T09:00:00Z'), endAt: at('2026-12-02T11:00:00Z') };
+
+	it('is free with nothing near, or a hold that ends as the span starts', () => {
+		expect(spanIsFree(span, [], [])).toBe(true);
+		const before = { startAt: at('2026-12-02T07:00:00Z'), blockedUntil: span.startAt };
+		expect(spanIsFree(span, [before], [])).toBe(true);
+	});
+
+	it('is taken by a purge buffer reaching into it, or by an outage', () => {
+		const purge = {
+			startAt: at('2026-12-02T07:00:00Z'),
+			blockedUntil: at('2026-12-02T09:15:00Z')
+		};
+		expect(spanIsFree(span, [purge], [])).toBe(false);
+		const outage = { startAt: at('2026-12-02T10:45:00Z'), endAt: at('2026-12-02T14:00:00Z') };
+		expect(spanIsFree(span, [], [outage])).toBe(false);
+	});
+});
+
+describe('boxBlockers: why the box picker marks a box', () => {
+	const box = {
+		status: 'in_service' as const,
+		atmosphereState: 'ok' as const,
+		requiredModules: [
+			{ id: 1, name: 'General box use' },
+			{ id: 2, name: 'Antechamber transfers' }
+		]
+	};
+
+	it('names each required module not held, and how it lapsed', () => {
+		expect(boxBlockers(box, new Map([[1, 'current']]))).toEqual([
+			'Needs the “Antechamber transfers” certification.'
+		]);
+		expect(
+			boxBlockers(
+				box,
+				new Map([
+					[1, 'expired'],
+					[2, 'revoked']
+				])
+			)
+		).toEqual([
+			'Needs the “General box use” certification (expired).',
+			'Needs the “Antechamber transfers” certification (revoked).'
+		]);
+	});
+
+	it('is empty when every module is held (expiring still counts) and the box can be booked', () => {
+		expect(
+			boxBlockers(
+				box,
+				new Map([
+					[1, 'current'],
+					[2, 'expiring']
+				])
+			)
+		).toEqual([]);
+	});
+
+	it('says when the box is out of service or in alarm', () => {
+		const held = new Map([
+			[1, 'current' as const],
+			[2, 'current' as const]
+		]);
+		expect(boxBlockers({ ...box, status: 'out_of_service' }, held)).toEqual([
+			'The box is out of service.'
+		]);
+		expect(boxBlockers({ ...box, atmosphereState: 'alarm' }, held)).toEqual([
+			'The box is in atmosphere alarm.'
+		]);
+	});
+});
+
+describe('weeklySlots (bookings.ts): a series on the facility wall clock', () => {
+	it('keeps 09:00–11:00 across the autumn change, so the instants move by an hour', () => {
+		// Tue 20 Oct 2026 09:00 CEST (UTC+2); summer time ends Sun 25 Oct.
+		const slots = weeklySlots(at('2026-10-20T07:00:00Z'), at('2026-10-20T09:00:00Z'), 3, tz);
+		expect(slots.map((s) => [s.start.toISOString(), s.end.toISOString(), s.missing])).toEqual([
+			['2026-10-20T07:00:00.000Z', '2026-10-20T09:00:00.000Z', false],
+			['2026-10-27T08:00:00.000Z', '2026-10-27T10:00:00.000Z', false],
+			['2026-11-03T08:00:00.000Z', '2026-11-03T10:00:00.000Z', false]
+		]);
+	});
+
+	it('marks the week whose time the spring change skips', () => {
+		// Sun 21 Mar 2027 02:30–03:30 CET; on Sun 28 Mar 02:00–03:00 does not exist.
+		const slots = weeklySlots(at('2027-03-21T01:30:00Z'), at('2027-03-21T02:30:00Z'), 2, tz);
+		expect(slots.map((s) => s.missing)).toEqual([false, true]);
+		expect(missingTimeReason(slots[1], tz).code).toBe('no_such_time');
+		expect(missingTimeReason(slots[1], tz).message).toContain('Sun 28 Mar');
+	});
+
+	it('gives one slot for one week', () => {
+		expect(weeklySlots(at('2026-12-02T09:00:00Z'), at('2026-12-02T11:00:00Z'), 1, tz)).toEqual([
+			{ start: at('2026-12-02T09:00:00Z'), end: at('2026-12-02T11:00:00Z'), missing: false }
 		]);
 	});
 });

@@ -3,8 +3,10 @@
 // just re-read; the client may call it for early hints.
 import type { AtmosphereState, BoxStatus } from './boxes';
 import { chemicalClasses } from './boxes';
-import type { BookingStatus } from './bookings';
+import type { BookingStatus, WeeklySlot } from './bookings';
+import type { CertificationState } from './certifications';
 import {
+	formatDate,
 	formatDateTime,
 	formatDuration,
 	formatRange,
@@ -93,6 +95,11 @@ export type RuleContext = {
 	outages: OutageSpan[];
 	/** The user's held bookings on this box in the ISO weeks the request touches. */
 	userBookings: { startAt: Date; endAt: Date }[];
+	/**
+	 * The booking being moved, as it stands (its own hold is left out of `others` and
+	 * `userBookings`): one under way may keep its start while its end changes.
+	 */
+	current?: { start: Date };
 };
 
 export type ReasonCode =
@@ -109,7 +116,8 @@ export type ReasonCode =
 	| 'excluded_chemical'
 	| 'overlaps_booking'
 	| 'overlaps_pending'
-	| 'overlaps_purge';
+	| 'overlaps_purge'
+	| 'no_such_time';
 
 export type Conflict = {
 	kind: 'booking' | 'pending' | 'purge' | 'outage';
@@ -191,7 +199,9 @@ export function checkBooking(req: BookingRequest, ctx: RuleContext): RuleResult 
 
 	// Times and lengths.
 	const length = minutesBetween(req.start, req.end);
-	if (req.start < now) add('start_in_past', 'The booking would start in the past.');
+	const keepsItsStart = ctx.current?.start.getTime() === req.start.getTime();
+	if (req.start < now && !keepsItsStart)
+		add('start_in_past', 'The booking would start in the past.');
 	const horizon = new Date(now.getTime() + box.horizonDays * 86_400_000);
 	if (req.start > horizon) {
 		add(
@@ -310,4 +320,49 @@ export function checkBooking(req: BookingRequest, ctx: RuleContext): RuleResult 
 export function refusalStatus(result: RuleResult): 409 | 422 | null {
 	if (!result.reasons.length) return null;
 	return result.reasons.every((r) => r.conflict) ? 409 : 422;
+}
+
+/**
+ * Is a span free of every hold and outage on the box? What a watch waits for: the same
+ * overlap rule (holdOverlaps) that refuses a booking, so "free" means a booking of exactly
+ * that time would not collide with anything.
+ */
+export function spanIsFree(span: Span, holds: Hold[], outages: Span[]): boolean {
+	return (
+		!holds.some((h) => holdOverlaps(h, span)) &&
+		!outages.some((o) => holdOverlaps({ startAt: o.startAt, blockedUntil: o.endAt }, span))
+	);
+}
+
+/** The refusal of a week of a series whose wall-clock time does not exist (weeklySlots). */
+export function missingTimeReason(slot: WeeklySlot, tz: string): Reason {
+	return {
+		code: 'no_such_time',
+		message: `The clocks change that night: this time does not exist on ${formatDate(slot.start, tz)}.`
+	};
+}
+
+/**
+ * Why a person cannot book a box at all, in words, for the box picker: a required module
+ * not held (never, lapsed or revoked), the box out of service or in atmosphere alarm. Empty
+ * when nothing stands in the way; checkBooking still decides each booking.
+ */
+export function boxBlockers(
+	box: {
+		status: BoxStatus;
+		atmosphereState: AtmosphereState;
+		requiredModules: { id: number; name: string }[];
+	},
+	standing: Map<number, CertificationState>
+): string[] {
+	const why: string[] = [];
+	for (const m of box.requiredModules) {
+		const state = standing.get(m.id) ?? 'none';
+		if (state === 'current' || state === 'expiring') continue;
+		const how = state === 'expired' ? ' (expired)' : state === 'revoked' ? ' (revoked)' : '';
+		why.push(`Needs the “${m.name}” certification${how}.`);
+	}
+	if (box.status === 'out_of_service') why.push('The box is out of service.');
+	if (box.atmosphereState === 'alarm') why.push('The box is in atmosphere alarm.');
+	return why;
 }

@@ -1,3 +1,5 @@
+import { local } from './time';
+
 export const bookingStatuses = [
 	'pending',
 	'confirmed',
@@ -55,3 +57,27 @@ export const LONGEST_PURGE_MS = 12 * 3_600_000;
  * the lower bound on start_at that lets range reads use the (…, start_at) indexes.
  */
 export const LONGEST_HOLD_MS = LONGEST_BOOKING_MS + LONGEST_PURGE_MS;
+
+/** How many weeks a weekly series may run, the first week included. */
+export const MAX_REPEAT_WEEKS = 12;
+
+/** One week's slot of a weekly series; `missing` when its wall-clock time does not exist. */
+export type WeeklySlot = { start: Date; end: Date; missing: boolean };
+
+/**
+ * The same wall-clock slot on each of `weeks` weeks from the first (the first included), on
+ * the facility's clock: 09:00–11:00 stays 09:00–11:00 across a daylight-saving change, so
+ * the instants move by an hour. A start or end that falls in the hour skipped in spring does
+ * not exist that week (`missing`; luxon's shifted instant is kept to name the week).
+ */
+export function weeklySlots(start: Date, end: Date, weeks: number, tz: string): WeeklySlot[] {
+	const a = local(start, tz);
+	const b = local(end, tz);
+	return Array.from({ length: weeks }, (_, k) => {
+		const s = a.plus({ weeks: k });
+		const e = b.plus({ weeks: k });
+		const missing =
+			s.toFormat('HH:mm') !== a.toFormat('HH:mm') || e.toFormat('HH:mm') !== b.toFormat('HH:mm');
+		return { start: s.toJSDate(), end: e.toJSDate(), missing };
+	});
+}

@@ -1,5 +1,11 @@
 import { describe, expect, it } from 'vitest';
-import { changePasswordSchema, registerSchema, signInSchema } from './account';
+import {
+	changePasswordSchema,
+	inviteSchema,
+	registerSchema,
+	setPasswordSchema,
+	signInSchema
+} from './account';
 import { fieldErrors } from './fields';
 
 describe('signInSchema', () => {
@@ -48,5 +54,47 @@ describe('changePasswordSchema', () => {
 		expect(fieldErrors(result.error!)).toEqual({
 			confirmPassword: 'The two new passwords differ.'
 		});
+	});
+});
+
+describe('setPasswordSchema', () => {
+	it('holds a new password to the registration rules and needs it twice', () => {
+		expect(
+			fieldErrors(
+				setPasswordSchema.safeParse({ password: 'short', confirmPassword: 'short' }).error!
+			)
+		).toEqual({ password: 'Use at least 12 characters.' });
+		expect(
+			fieldErrors(
+				setPasswordSchema.safeParse({ password: 'twelve-chars', confirmPassword: 'twelve-charz' })
+					.error!
+			)
+		).toEqual({ confirmPassword: 'The two passwords differ.' });
+	});
+
+	it('refuses a field it does not know by name', () => {
+		const result = setPasswordSchema.safeParse({
+			password: 'twelve-chars',
+			confirmPassword: 'twelve-chars',
+			userId: '3'
+		});
+		expect(result.success).toBe(false);
+	});
+});
+
+describe('inviteSchema', () => {
+	it('normalises the e-mail and leaves the group optional', () => {
+		expect(
+			inviteSchema.parse({ name: ' Ida ', email: 'Ida@Example.ORG', role: 'trainer' })
+		).toEqual({ name: 'Ida', email: 'ida@example.org', role: 'trainer' });
+		expect(
+			inviteSchema.parse({ name: 'Ida', email: 'ida@example.org', role: 'member', groupId: '4' })
+				.groupId
+		).toBe(4);
+	});
+
+	it('names an unknown role', () => {
+		const result = inviteSchema.safeParse({ name: 'Ida', email: 'ida@example.org', role: 'boss' });
+		expect(fieldErrors(result.error!)).toEqual({ role: 'Choose a role.' });
 	});
 });

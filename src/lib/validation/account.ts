@@ -1,4 +1,5 @@
 import { z } from 'zod';
+import { roles } from '$lib/domain/roles';
 
 export const MIN_PASSWORD_LENGTH = 12;
 
@@ -68,3 +69,46 @@ export const joinSchema = z.strictObject({
 });
 
 export const emailPreferencesSchema = z.strictObject({ confirmations: z.boolean() });
+
+const userId = z.coerce.number({ error: 'Choose a person.' }).int().positive('Choose a person.');
+
+/** One person on /admin/users: deactivate, reactivate, send a reset link or the invitation again. */
+export const accountSchema = z.strictObject({ userId });
+
+/** "Forgot your password?": only the address, whatever it is the answer is the same. */
+export const resetRequestSchema = z.strictObject({ email });
+
+/** A new password from a reset link or an invitation: the registration's rules, typed twice. */
+export const setPasswordSchema = z
+	.strictObject({
+		password: newPassword,
+		confirmPassword: z.string({ error: 'Repeat the password.' }).max(256)
+	})
+	.refine((v) => v.password === v.confirmPassword, {
+		message: 'The two passwords differ.',
+		path: ['confirmPassword']
+	});
+
+/** An admin invites a person: they set their own password from the e-mail's link. */
+export const inviteSchema = z.strictObject({
+	name: z
+		.string({ error: 'Enter their name.' })
+		.trim()
+		.min(2, 'Enter their name.')
+		.max(120, 'Use at most 120 characters.'),
+	email: z
+		.string({ error: 'Enter their e-mail address.' })
+		.trim()
+		.toLowerCase()
+		.min(1, 'Enter their e-mail address.')
+		.max(254, 'That e-mail address is too long.')
+		.pipe(z.email({ error: 'Enter a valid e-mail address.' })),
+	role: z.enum(roles, { error: 'Choose a role.' }),
+	groupId: z.coerce
+		.number({ error: 'Choose one of the listed groups.' })
+		.int('Choose one of the listed groups.')
+		.positive('Choose one of the listed groups.')
+		.optional()
+});
+
+export type InviteInput = z.output<typeof inviteSchema>;

@@ -1,17 +1,18 @@
+import { boxBlockers } from '$lib/domain/booking-rules';
 import { requireUser } from '$lib/server/guard';
 import { listBoxes } from '$lib/server/services/boxes';
-import { currentCertifications } from '$lib/server/services/training';
+import { certificationsOf } from '$lib/server/services/training';
 import { profile } from '$lib/server/services/accounts';
 import type { PageServerLoad } from './$types';
 
 export const load: PageServerLoad = async (event) => {
 	const user = requireUser(event);
-	const [boxes, certs, me] = await Promise.all([
+	const [boxes, standing, me] = await Promise.all([
 		listBoxes(),
-		currentCertifications(user.id),
+		certificationsOf(user.id),
 		profile(user.id)
 	]);
-	const held = new Set(certs.map((c) => c.moduleId));
+	const states = new Map(standing.map((c) => [c.moduleId, c.state]));
 	return {
 		// The groups a booking may be billed to; the first is the default.
 		groups: me.groups.map((g: { id: number; name: string }) => ({ id: g.id, name: g.name })),
@@ -20,8 +21,8 @@ export const load: PageServerLoad = async (event) => {
 			name: b.name,
 			gas: b.gas,
 			condition: b.condition,
-			// A hint for which box to show first; the server still checks every booking.
-			bookable: b.requiredModules.every((m) => held.has(m.id))
+			// Why this person cannot book it, for the pickers; the server still checks each booking.
+			blockers: boxBlockers(b, states)
 		}))
 	};
 };

@@ -21,6 +21,7 @@ export function navFor(role: Role, isPi: boolean): NavItem[] {
 	if (hasRole(role, 'manager')) items.push({ href: '/manage/outbox', label: 'Outbox' });
 	if (hasRole(role, 'manager')) items.push({ href: '/reports', label: 'Reports' });
 	if (role === 'admin') items.push({ href: '/admin/users', label: 'Users and roles' });
+	if (hasRole(role, 'manager')) items.push({ href: '/admin/audit', label: 'Audit log' });
 	items.push({ href: '/notifications', label: 'Notifications' });
 	items.push({ href: '/account', label: 'Account' });
 	return items;

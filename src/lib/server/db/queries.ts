@@ -3,7 +3,7 @@
 // services that use them.
 import { getTableName, gte, inArray, sql, type SQL } from 'drizzle-orm';
 import type { MySqlColumn } from 'drizzle-orm/mysql-core';
-import type { HeldBooking, OutageSpan, Span } from '$lib/domain/booking-rules';
+import type { HeldBooking, Hold, OutageSpan, Span } from '$lib/domain/booking-rules';
 import type { AtmosphereState, BoxStatus } from '$lib/domain/boxes';
 import {
 	LONGEST_HOLD_MS,
@@ -144,5 +144,29 @@ export async function lockBoxForBooking(tx: Transaction, q: BookingRequestRead) 
 		})),
 		outages: near('outage').map((r): OutageSpan => ({ id: r.id, ...span(r), reason: r.status })),
 		userBookings: near('mine').map(span)
+	};
+}
+
+/**
+ * What holds the box over [start, end): held bookings (their hold, purge included, or up to
+ * a no-show's freeing) and outages. For a watch, read under the box lock, so nothing can
+ * take the time between this read and the caller's decision.
+ */
+export async function holdsWithin(tx: Transaction, boxId: number, start: Date, end: Date) {
+	const [rows] = (await tx.execute(sql`
+		SELECT 'booking' AS src, start_at, blocked_until AS end_at FROM bookings
+		WHERE box_id = ${boxId} AND ${inArray(bookings.status, holdingStatuses)}
+			AND start_at < ${end} AND blocked_until > ${start} AND ${startsFrom(start)}
+		UNION ALL
+		SELECT 'outage', start_at, end_at FROM outages
+		WHERE box_id = ${boxId} AND start_at < ${end} AND end_at > ${start}
+	`)) as unknown as [{ src: 'booking' | 'outage'; start_at: string; end_at: string }[]];
+	const of = (src: 'booking' | 'outage') => rows.filter((r) => r.src === src);
+	return {
+		holds: of('booking').map((r): Hold => ({
+			startAt: utc(r.start_at),
+			blockedUntil: utc(r.end_at)
+		})),
+		outages: of('outage').map((r): Span => ({ startAt: utc(r.start_at), endAt: utc(r.end_at) }))
 	};
 }

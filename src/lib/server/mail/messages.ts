@@ -1,5 +1,5 @@
 // The words of Boxwright's e-mails. Each builder returns what the outbox stores.
-import { formatRange } from '$lib/domain/time';
+import { formatDateTime, formatRange } from '$lib/domain/time';
 import { config } from '../config';
 import { bookingInvite, type IcsBooking } from '../ical';
 
@@ -30,7 +30,9 @@ export function bookingCancelled(
 	booking: IcsBooking,
 	person: Person,
 	reason: string,
-	alternatives: { start: Date; end: Date; boxName: string }[] = []
+	alternatives: { start: Date; end: Date; boxName: string }[] = [],
+	/** Off when the person can no longer book (their account was deactivated). */
+	{ rebook: offerRebook = true }: { rebook?: boolean } = {}
 ): Message {
 	const when = formatRange(booking.startAt, booking.endAt, config.facilityTz);
 	const rebook = `${config.origin}/bookings`;
@@ -46,7 +48,7 @@ export function bookingCancelled(
 					)
 				]
 			: []),
-		`Rebook: ${rebook}`,
+		...(offerRebook ? [`Rebook: ${rebook}`] : []),
 		`Questions: ${config.facilityContact}`
 	];
 	return {
@@ -68,7 +70,9 @@ export function bookingCancelled(
 								.join('<br>')
 					]
 				: []),
-			`<a href="${escape(rebook)}">Rebook in Boxwright</a> · questions to ${escape(config.facilityContact)}`
+			offerRebook
+				? `<a href="${escape(rebook)}">Rebook in Boxwright</a> · questions to ${escape(config.facilityContact)}`
+				: `Questions to ${escape(config.facilityContact)}`
 		]),
 		icsMethod: 'CANCEL',
 		ics: bookingInvite(booking, 'CANCEL', reason)
@@ -122,5 +126,60 @@ export function staffNotice(title: string, body: string, link: string): Message 
 		subject: title,
 		text: `${body}\n\n${url}`,
 		html: html([escape(body), `<a href="${escape(url)}">Open in Boxwright</a>`])
+	};
+}
+
+/** How a date reads in account e-mails: "Tue 1 Dec, 09:00" on the facility's clock. */
+const untilWhen = (at: Date) => formatDateTime(at, config.facilityTz);
+
+/** A password reset link: single use, valid for an hour; harmless to ignore. */
+export function passwordReset(person: Person, link: string, expiresAt: Date): Message {
+	const lines = [
+		`Hello ${person.name},`,
+		`someone (we hope you) asked to reset the password of your ${config.facilityName} Boxwright account.`,
+		`Choose a new password here: ${link}`,
+		`The link works once, until ${untilWhen(expiresAt)}. Setting a new password signs you out everywhere.`,
+		'If you did not ask for this, ignore this e-mail: your password stays as it is.',
+		`Questions: ${config.facilityContact}`
+	];
+	return {
+		kind: 'password_reset',
+		subject: 'Reset your Boxwright password',
+		text: lines.join('\n'),
+		html: html([
+			`Hello ${escape(person.name)},`,
+			`someone (we hope you) asked to reset the password of your ${escape(config.facilityName)} Boxwright account.`,
+			`<a href="${escape(link)}">Choose a new password</a>`,
+			`The link works once, until ${escape(untilWhen(expiresAt))}. Setting a new password signs you out everywhere.`,
+			'If you did not ask for this, ignore this e-mail: your password stays as it is.',
+			`Questions to ${escape(config.facilityContact)}`
+		])
+	};
+}
+
+/** An invitation to an account an admin prepared: the person chooses their password. */
+export function invitation(
+	person: Person,
+	invite: { by: string; role: string; groupName: string | null; link: string; expiresAt: Date }
+): Message {
+	const joining = invite.groupName ? ` in the group ${invite.groupName}` : '';
+	const lines = [
+		`Hello ${person.name},`,
+		`${invite.by} has invited you to Boxwright, where ${config.facilityName} books its glove boxes, as ${invite.role}${joining}.`,
+		`Choose your password to start: ${invite.link}`,
+		`The link works once, until ${untilWhen(invite.expiresAt)}. After that, ask for a new invitation.`,
+		`Questions: ${config.facilityContact}`
+	];
+	return {
+		kind: 'invitation',
+		subject: `You are invited to Boxwright (${config.facilityName})`,
+		text: lines.join('\n'),
+		html: html([
+			`Hello ${escape(person.name)},`,
+			`${escape(invite.by)} has invited you to Boxwright, where ${escape(config.facilityName)} books its glove boxes, as ${escape(invite.role)}${escape(joining)}.`,
+			`<a href="${escape(invite.link)}">Choose your password</a>`,
+			`The link works once, until ${escape(untilWhen(invite.expiresAt))}. After that, ask for a new invitation.`,
+			`Questions to ${escape(config.facilityContact)}`
+		])
 	};
 }

@@ -1,7 +1,15 @@
 import { and, asc, count, eq, inArray, sql } from 'drizzle-orm';
 import { hasRole } from '$lib/domain/roles';
 import { db } from '../db';
-import { groupMemberships, researchGroups, users, type Role, type UserStatus } from '../db/schema';
+import {
+	groupMemberships,
+	moduleTrainers,
+	researchGroups,
+	trainingModules,
+	users,
+	type Role,
+	type UserStatus
+} from '../db/schema';
 import { hashPassword, verifyDecoy, verifyPassword } from '../password';
 import { clearFailedSignIns, recordFailedSignIn, signInRetryAfter } from '../rate-limit';
 import { audit } from './audit';
@@ -53,12 +61,14 @@ export type SignInResult =
 	| { kind: 'ok'; userId: number }
 	| { kind: 'invalid' }
 	| { kind: 'pending' }
+	| { kind: 'invited' }
 	| { kind: 'suspended' }
 	| { kind: 'throttled'; retryAfterSeconds: number };
 
 /**
  * Checks a password. An unknown e-mail and a wrong password get the same answer and take
- * the same time; only with the right password does a pending or suspended account say so.
+ * the same time; only with the right password does a pending, invited or deactivated
+ * account say so. Only an active account signs in.
  */
 export async function checkSignIn(
 	email: string,
@@ -80,8 +90,7 @@ export async function checkSignIn(
 		return { kind: 'invalid' };
 	}
 	await clearFailedSignIns(email, address);
-	if (user.status === 'pending') return { kind: 'pending' };
-	if (user.status === 'suspended') return { kind: 'suspended' };
+	if (user.status !== 'active') return { kind: user.status };
 	return { kind: 'ok', userId: user.id };
 }
 
@@ -89,7 +98,9 @@ export const signInMessages = {
 	invalid: 'That e-mail and password do not match an account.',
 	pending:
 		"Your account is waiting for approval by your group's PI or a facility manager. You can sign in once it is approved.",
-	suspended: 'This account is suspended. Ask a facility manager.',
+	invited:
+		'This account is not set up yet: choose your password from the invitation e-mail, or ask an admin to send it again.',
+	suspended: 'This account has been deactivated. Ask a site administrator if you need it again.',
 	throttled: (seconds: number) =>
 		`Too many failed sign-ins. Try again in ${Math.ceil(seconds / 60)} minute${seconds > 60 ? 's' : ''}.`
 };
@@ -284,6 +295,8 @@ export type UserRow = {
 	role: Role;
 	status: UserStatus;
 	groups: string;
+	/** The modules they teach (and so may certify for), by name. */
+	teaches: string[];
 };
 
 export async function listUsers(): Promise<UserRow[]> {
@@ -309,7 +322,14 @@ export async function listUsers(): Promise<UserRow[]> {
 		.leftJoin(researchGroups, eq(researchGroups.id, groupMemberships.groupId))
 		.groupBy(users.id)
 		.orderBy(asc(users.name));
-	return rows.map((r) => ({ ...r, groups: r.groups ?? '' }));
+	const taught = await db
+		.select({ userId: moduleTrainers.userId, name: trainingModules.name })
+		.from(moduleTrainers)
+		.innerJoin(trainingModules, eq(trainingModules.id, moduleTrainers.moduleId))
+		.orderBy(asc(trainingModules.name));
+	const teaches = new Map<number, string[]>();
+	for (const t of taught) teaches.set(t.userId, [...(teaches.get(t.userId) ?? []), t.name]);
+	return rows.map((r) => ({ ...r, groups: r.groups ?? '', teaches: teaches.get(r.id) ?? [] }));
 }
 
 /** Admins only. An admin cannot lower their own role, so a site always keeps one. */

@@ -1,27 +1,35 @@
-import { and, asc, eq, isNull, sql } from 'drizzle-orm';
-import { checkBooking, quotaSpan, refusalStatus, type Reason } from '$lib/domain/booking-rules';
-import { openStatuses, type BookingStatus } from '$lib/domain/bookings';
+// The write side of bookings: making one or a weekly series, moving or editing it, cancelling
+// and approving, each under the box row lock; the check itself is booking-check.ts.
+import { eq, sql } from 'drizzle-orm';
+import { missingTimeReason, refusalStatus } from '$lib/domain/booking-rules';
+import { weeklySlots, type BookingStatus } from '$lib/domain/bookings';
 import { hasRole } from '$lib/domain/roles';
 import { isoInZone } from '$lib/domain/time';
-import type { BookingInput } from '$lib/validation/bookings';
+import type { BookingChange, BookingInput } from '$lib/validation/bookings';
 import { config } from '../config';
 import { db, type Transaction } from '../db';
-import { defaultGroupId, lockBoxForBooking } from '../db/queries';
-import {
-	groupMemberships,
-	bookings,
-	boxes,
-	boxRequiredModules,
-	certifications,
-	trainingModules,
-	users
-} from '../db/schema';
+import { lockBox } from '../db/locks';
+import { bookings, boxes, users, type Booking } from '../db/schema';
+import { transaction } from '../db/transaction';
 import type { Actor } from './accounts';
 import { audit } from './audit';
-import { forbidden, notFound, ServiceError } from './errors';
-import { bookingConfirmed } from '../mail/messages';
-import { enqueue } from '../mail/outbox';
-import { transaction } from '../db/transaction';
+import {
+	billedGroup,
+	boxOf,
+	evaluate,
+	mustBeOpen,
+	queueConfirmation,
+	readGates,
+	reasonsForClient,
+	refusal,
+	type Gates,
+	type SeriesRefusal
+} from './booking-check';
+import { attempt, forbidden, notFound, ServiceError } from './errors';
+import { notifyFreedWatches } from './watches';
+
+// The approvals list and the shell's badge are reads; they live with the other reads.
+export { countPendingBookings, pendingBookings } from './calendar';
 
 /**
  * Books a free time offered after an outage cancelled `fromBookingId`: the same purpose,
@@ -57,106 +65,65 @@ export async function getBooking(actor: Actor, id: number) {
 	return booking;
 }
 
-/** What does not race with other bookings: read before the box lock is taken. */
-async function readGates(userId: number, boxId: number) {
-	const [requiredModules, certs, [person]] = await Promise.all([
-		db
-			.select({ id: trainingModules.id, name: trainingModules.name })
-			.from(boxRequiredModules)
-			.innerJoin(trainingModules, eq(trainingModules.id, boxRequiredModules.moduleId))
-			.where(eq(boxRequiredModules.boxId, boxId)),
-		db
-			.select({
-				moduleId: certifications.moduleId,
-				grantedAt: certifications.grantedAt,
-				expiresAt: certifications.expiresAt
-			})
-			.from(certifications)
-			.where(and(eq(certifications.userId, userId), isNull(certifications.revokedAt))),
-		db
-			.select({
-				email: users.email,
-				name: users.name,
-				emailConfirmations: users.emailConfirmations,
-				// The group billed for the booking, fixed when it is made: joining another group
-				// later moves nothing.
-				groupId: defaultGroupId(users.id)
-			})
-			.from(users)
-			.where(eq(users.id, userId))
-	]);
-	return { requiredModules, certs, person };
-}
-
 /**
- * Locks the box row and reads what the lock protects (lockBoxForBooking), then lets the
- * rules decide. Two requests for one slot queue on the box row; the second sees the first.
+ * Checks and inserts one booking in the caller's transaction (evaluate locks the box row
+ * first). `series`: the series it joins, 'first' for the first of a new one (its own id).
  */
-async function evaluate(
+async function insertBooking(
 	tx: Transaction,
-	userId: number,
+	actor: Actor,
 	input: BookingInput,
+	gates: Gates,
+	groupId: number | null,
 	now: Date,
-	gates: Awaited<ReturnType<typeof readGates>>,
-	ignoreBookingId = 0
+	series: number | 'first' | null = null
 ) {
-	const near = await lockBoxForBooking(tx, {
-		boxId: input.boxId,
-		userId,
-		start: input.start,
-		end: input.end,
-		quota: quotaSpan(input.start, input.end, config.facilityTz),
-		ignoreBookingId
-	});
-	if (!near)
-		throw new ServiceError(404, 'The box was not found.', { fields: { boxId: 'No such box.' } });
-	const { box, others, outages, userBookings } = near;
-	const result = checkBooking(
-		{
-			start: input.start,
-			end: input.end,
-			volatileSolvents: input.volatileSolvents,
-			chemicalClasses: input.chemicalClasses
-		},
-		{
-			now,
-			tz: config.facilityTz,
-			box: { ...box, requiredModules: gates.requiredModules },
-			certifications: gates.certs,
-			others,
-			outages,
-			userBookings
-		}
-	);
-	return { box, result };
-}
+	const { box, result } = await evaluate(tx, actor.id, input, now, gates);
+	const status = refusalStatus(result);
+	if (status) throw refusal(result.reasons, status);
 
-function reasonsForClient(reasons: Reason[]) {
-	return reasons.map((r) => ({
-		code: r.code,
-		message: r.message,
-		...(r.conflict
-			? {
-					conflict: {
-						kind: r.conflict.kind,
-						id: r.conflict.id,
-						start: isoInZone(r.conflict.start, config.facilityTz),
-						end: isoInZone(r.conflict.end, config.facilityTz)
-					}
-				}
-			: {})
-	}));
-}
-
-function refusal(reasons: Reason[], status: 409 | 422): ServiceError {
-	const details = { reasons: reasonsForClient(reasons) };
-	if (status === 409) {
-		return new ServiceError(409, 'Someone else holds that time on the box.', {
-			...details,
-			conflicts: details.reasons.map((r) => r.conflict)
-		});
+	const values = {
+		boxId: box.id,
+		userId: actor.id,
+		groupId,
+		startAt: input.start,
+		endAt: input.end,
+		// The end of the hold the rules checked, purge included: stored, never worked out again.
+		blockedUntil: result.blockedUntil,
+		purpose: input.purpose,
+		chemicalClasses: input.chemicalClasses,
+		volatileSolvents: input.volatileSolvents,
+		status: (box.needsApproval ? 'pending' : 'confirmed') as BookingStatus,
+		confirmedAt: box.needsApproval ? null : now,
+		seriesId: typeof series === 'number' ? series : null
+	};
+	const [created] = await tx.insert(bookings).values(values).$returningId();
+	if (series === 'first') {
+		values.seriesId = created.id;
+		await tx.update(bookings).set({ seriesId: created.id }).where(eq(bookings.id, created.id));
 	}
-	return new ServiceError(422, 'The booking breaks the box’s rules.', details);
+	await audit(tx, {
+		actorId: actor.id,
+		action: 'booking.created',
+		entity: 'booking',
+		entityId: created.id,
+		details: {
+			boxId: box.id,
+			start: input.start.toISOString(),
+			end: input.end.toISOString(),
+			status: values.status,
+			...(values.seriesId ? { seriesId: values.seriesId } : {})
+		}
+	});
+	if (values.status === 'confirmed' && gates.person?.emailConfirmations) {
+		await queueConfirmation(
+			tx,
+			{ id: actor.id, ...gates.person },
+			{ id: created.id, ...values, sequence: 0 },
+			box
+		);
+	}
+	return { id: created.id, ...values, cancelReason: null, cancelCause: null, outageId: null };
 }
 
 /**
@@ -166,75 +133,51 @@ function refusal(reasons: Reason[], status: 409 | 422): ServiceError {
  */
 export async function createBooking(actor: Actor, input: BookingInput, now = new Date()) {
 	const gates = await readGates(actor.id, input.boxId);
-	const groupId = input.groupId ?? gates.person?.groupId ?? null;
-	if (input.groupId !== undefined) {
-		const [member] = await db
-			.select({ id: groupMemberships.id })
-			.from(groupMemberships)
-			.where(
-				and(
-					eq(groupMemberships.userId, actor.id),
-					eq(groupMemberships.groupId, input.groupId),
-					eq(groupMemberships.status, 'active')
-				)
-			);
-		if (!member)
-			throw new ServiceError(400, 'You can only bill a booking to a group you are in.', {
-				fields: { groupId: 'Choose one of your groups.' }
-			});
-	}
-	return transaction(async (tx) => {
-		const { box, result } = await evaluate(tx, actor.id, input, now, gates);
-		const status = refusalStatus(result);
-		if (status) throw refusal(result.reasons, status);
-
-		const values = {
-			boxId: box.id,
-			userId: actor.id,
-			groupId,
-			startAt: input.start,
-			endAt: input.end,
-			// The end of the hold the rules checked, purge included: stored, never worked out again.
-			blockedUntil: result.blockedUntil,
-			purpose: input.purpose,
-			chemicalClasses: input.chemicalClasses,
-			volatileSolvents: input.volatileSolvents,
-			status: (box.needsApproval ? 'pending' : 'confirmed') as BookingStatus,
-			confirmedAt: box.needsApproval ? null : now
-		};
-		const [created] = await tx.insert(bookings).values(values).$returningId();
-		await audit(tx, {
-			actorId: actor.id,
-			action: 'booking.created',
-			entity: 'booking',
-			entityId: created.id,
-			details: {
-				boxId: box.id,
-				start: input.start.toISOString(),
-				end: input.end.toISOString(),
-				status: values.status
-			}
-		});
-		if (values.status === 'confirmed' && gates.person?.emailConfirmations) {
-			await queueConfirmation(
-				tx,
-				{ id: actor.id, ...gates.person },
-				{ id: created.id, ...values, sequence: 0 },
-				box
-			);
-		}
-		return { id: created.id, ...values, cancelReason: null, cancelCause: null, outageId: null };
-	});
+	const groupId = await billedGroup(actor, input, gates);
+	return transaction((tx) => insertBooking(tx, actor, input, gates, groupId, now));
 }
 
-async function queueConfirmation(
-	tx: Transaction,
-	person: { id: number; email: string; name: string },
-	b: { id: number; startAt: Date; endAt: Date; purpose: string; sequence: number },
-	box: { name: string; room: string }
+/**
+ * A weekly series: the slot on each of `weeks` weeks on the facility's wall clock (the first
+ * included), each checked and made on its own, in its own transaction, as any booking. All
+ * made share the first made one's id as `seriesId`. A 422 when none could be made.
+ */
+export async function createSeries(
+	actor: Actor,
+	input: BookingInput,
+	weeks: number,
+	now = new Date()
 ) {
-	const message = bookingConfirmed({ ...b, boxName: box.name, room: box.room }, person);
-	await enqueue(tx, person, message, `booking:${b.id}:confirmed:${b.sequence}`);
+	const tz = config.facilityTz;
+	const gates = await readGates(actor.id, input.boxId);
+	const groupId = await billedGroup(actor, input, gates);
+	const created: Awaited<ReturnType<typeof insertBooking>>[] = [];
+	const refused: SeriesRefusal[] = [];
+	for (const slot of weeklySlots(input.start, input.end, weeks, tz)) {
+		const when = { start: isoInZone(slot.start, tz), end: isoInZone(slot.end, tz) };
+		if (slot.missing) {
+			refused.push({ ...when, reasons: reasonsForClient([missingTimeReason(slot, tz)]) });
+			continue;
+		}
+		const one = { ...input, start: slot.start, end: slot.end };
+		const made = await attempt(() =>
+			transaction((tx) =>
+				insertBooking(tx, actor, one, gates, groupId, now, created[0]?.id ?? 'first')
+			)
+		);
+		if (made.ok) created.push(made.value);
+		else if (made.error.status === 409 || made.error.status === 422) {
+			const details = made.error.details as { reasons: SeriesRefusal['reasons'] };
+			refused.push({ ...when, reasons: details.reasons });
+		} else throw made.error;
+	}
+	if (!created.length) {
+		throw new ServiceError(422, 'None of the weeks could be booked.', {
+			reasons: refused[0]?.reasons ?? [],
+			refused
+		});
+	}
+	return { created, refused };
 }
 
 /** Owner or manager cancels a pending or confirmed booking that has not ended. */
@@ -244,16 +187,16 @@ export async function cancelBooking(
 	reason: string | undefined,
 	now = new Date()
 ) {
+	const boxId = await boxOf(id);
 	return transaction(async (tx) => {
+		// The box row first, as every change to a box's time takes it, then the booking.
+		await lockBox(tx, boxId);
 		const [booking] = await tx.select().from(bookings).where(eq(bookings.id, id)).for('update');
 		if (!booking) throw notFound('The booking');
 		const isOwner = booking.userId === actor.id;
 		if (!isOwner && !hasRole(actor.role, 'manager'))
 			throw forbidden('You can only cancel your own bookings.');
-		if (!openStatuses.includes(booking.status)) {
-			throw new ServiceError(409, `This booking is already ${booking.status.replace('_', '-')}.`);
-		}
-		if (booking.endAt <= now) throw new ServiceError(409, 'This booking has already ended.');
+		mustBeOpen(booking, now, 'cancelled');
 		const cause = isOwner ? 'user' : 'manager';
 		await tx
 			.update(bookings)
@@ -273,6 +216,12 @@ export async function cancelBooking(
 			entityId: id,
 			details: { cause, reason }
 		});
+		await notifyFreedWatches(
+			tx,
+			boxId,
+			{ startAt: booking.startAt, endAt: booking.blockedUntil },
+			now
+		);
 		const [row] = await tx.select().from(bookings).where(eq(bookings.id, id));
 		return row;
 	});
@@ -287,7 +236,9 @@ export async function decideBooking(
 	now = new Date()
 ) {
 	if (!hasRole(actor.role, 'manager')) throw forbidden('Only a manager can approve bookings.');
+	const boxId = await boxOf(id);
 	return transaction(async (tx) => {
+		await lockBox(tx, boxId);
 		const [booking] = await tx.select().from(bookings).where(eq(bookings.id, id)).for('update');
 		if (!booking) throw notFound('The booking');
 		if (booking.status !== 'pending')
@@ -333,6 +284,12 @@ export async function decideBooking(
 					sequence: sql`${bookings.sequence} + 1`
 				})
 				.where(eq(bookings.id, id));
+			await notifyFreedWatches(
+				tx,
+				booking.boxId,
+				{ startAt: booking.startAt, endAt: booking.blockedUntil },
+				now
+			);
 		}
 		await audit(tx, {
 			actorId: actor.id,
@@ -344,31 +301,93 @@ export async function decideBooking(
 	});
 }
 
-export async function pendingBookings() {
-	return db
-		.select({
-			id: bookings.id,
-			startAt: bookings.startAt,
-			endAt: bookings.endAt,
-			purpose: bookings.purpose,
-			chemicalClasses: bookings.chemicalClasses,
-			volatileSolvents: bookings.volatileSolvents,
-			boxName: boxes.name,
-			userName: users.name,
-			createdAt: bookings.createdAt
-		})
+/**
+ * Moves a booking (new start and/or end) or changes its purpose, for its holder or a manager,
+ * through the same rules as a new booking, with the booking itself left out of what it may
+ * collide with. Under the box lock; a refusal changes nothing. A change raises the iCalendar
+ * SEQUENCE and sends the holder the updated invitation (if they take confirmations). A move
+ * by the holder on a box that needs approval waits for approval again.
+ */
+export async function changeBooking(
+	actor: Actor,
+	id: number,
+	change: BookingChange,
+	now = new Date()
+): Promise<Booking> {
+	const [found] = await db
+		.select({ boxId: bookings.boxId, userId: bookings.userId })
 		.from(bookings)
-		.innerJoin(boxes, eq(boxes.id, bookings.boxId))
-		.innerJoin(users, eq(users.id, bookings.userId))
-		.where(eq(bookings.status, 'pending'))
-		.orderBy(asc(bookings.startAt));
-}
-
-/** How many bookings wait for a manager: the shell's badge, on every page, so a count. */
-export async function countPendingBookings(): Promise<number> {
-	const [row] = await db
-		.select({ n: sql<number>`count(*)` })
-		.from(bookings)
-		.where(eq(bookings.status, 'pending'));
-	return Number(row?.n ?? 0);
+		.where(eq(bookings.id, id));
+	if (!found) throw notFound('The booking');
+	const manager = hasRole(actor.role, 'manager');
+	if (found.userId !== actor.id && !manager)
+		throw forbidden('You can only change your own bookings.');
+	// The holder's training and quota decide, whoever moves it.
+	const gates = await readGates(found.userId, found.boxId);
+	return transaction(async (tx) => {
+		const box = await lockBox(tx, found.boxId);
+		const [b] = await tx.select().from(bookings).where(eq(bookings.id, id)).for('update');
+		if (!b) throw notFound('The booking');
+		mustBeOpen(b, now, 'changed');
+		const start = change.start ?? b.startAt;
+		const end = change.end ?? b.endAt;
+		if (end <= start) {
+			const message = 'The end must be after the start.';
+			throw new ServiceError(400, message, { fields: { end: message } });
+		}
+		const moved = start.getTime() !== b.startAt.getTime() || end.getTime() !== b.endAt.getTime();
+		const purpose = change.purpose ?? b.purpose;
+		if (!moved && purpose === b.purpose) return b;
+		let { blockedUntil, status, confirmedAt } = b;
+		if (moved) {
+			const slot = {
+				boxId: b.boxId,
+				start,
+				end,
+				volatileSolvents: b.volatileSolvents,
+				chemicalClasses: b.chemicalClasses
+			};
+			const { result } = await evaluate(tx, b.userId, slot, now, gates, {
+				id: b.id,
+				start: b.startAt
+			});
+			const refused = refusalStatus(result);
+			if (refused) throw refusal(result.reasons, refused);
+			blockedUntil = result.blockedUntil;
+			if (box.needsApproval && !manager && status === 'confirmed') {
+				status = 'pending';
+				confirmedAt = null;
+			}
+		}
+		const sequence = b.sequence + 1;
+		await tx
+			.update(bookings)
+			.set({ startAt: start, endAt: end, blockedUntil, purpose, status, confirmedAt, sequence })
+			.where(eq(bookings.id, id));
+		await audit(tx, {
+			actorId: actor.id,
+			action: moved ? 'booking.moved' : 'booking.changed',
+			entity: 'booking',
+			entityId: id,
+			details: {
+				from: { start: b.startAt.toISOString(), end: b.endAt.toISOString(), purpose: b.purpose },
+				to: { start: start.toISOString(), end: end.toISOString(), purpose },
+				status
+			}
+		});
+		// The time it held and no longer does may be what someone is waiting for.
+		if (moved)
+			await notifyFreedWatches(tx, b.boxId, { startAt: b.startAt, endAt: b.blockedUntil }, now);
+		if (status === 'confirmed' && gates.person?.emailConfirmations) {
+			await queueConfirmation(
+				tx,
+				{ id: b.userId, ...gates.person },
+				{ id, startAt: start, endAt: end, purpose, sequence },
+				box,
+				true
+			);
+		}
+		const [row] = await tx.select().from(bookings).where(eq(bookings.id, id));
+		return row;
+	});
 }

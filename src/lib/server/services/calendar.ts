@@ -1,8 +1,11 @@
 // How bookings are shown, read only: the calendar's events (bookings, their purge buffers
 // and outages in a range, for /api/boxes/:id/events and /api/events), a person's own list,
-// and one booking as the API gives it. Times carry the facility zone's offset.
-import { and, asc, desc, eq, gt, inArray, lt } from 'drizzle-orm';
+// the approvals list, and one booking as the API gives it. Times carry the facility zone's
+// offset.
+import { and, asc, desc, eq, gt, inArray, lt, sql } from 'drizzle-orm';
+import { mayCancel } from '$lib/domain/booking-state';
 import { holdingStatuses, type BookingStatus } from '$lib/domain/bookings';
+import { hasRole, type Role } from '$lib/domain/roles';
 import { isoInZone } from '$lib/domain/time';
 import { config } from '../config';
 import { db } from '../db';
@@ -24,6 +27,8 @@ export type PublicBooking = {
 	cancelCause: string | null;
 	/** The outage that cancelled it, when one did. */
 	outageId: number | null;
+	/** The first booking of the weekly series it was made in, or null. */
+	seriesId: number | null;
 };
 
 type BookingView = Pick<
@@ -41,6 +46,7 @@ type BookingView = Pick<
 	| 'cancelReason'
 	| 'cancelCause'
 	| 'outageId'
+	| 'seriesId'
 >;
 
 export function toPublic(b: BookingView, tz = config.facilityTz): PublicBooking {
@@ -57,7 +63,8 @@ export function toPublic(b: BookingView, tz = config.facilityTz): PublicBooking 
 		status: b.status,
 		cancelReason: b.cancelReason,
 		cancelCause: b.cancelCause,
-		outageId: b.outageId
+		outageId: b.outageId,
+		seriesId: b.seriesId
 	};
 }
 
@@ -101,7 +108,26 @@ export type CalendarEvent = {
 	bookingId?: number;
 	outageId?: number;
 	status?: BookingStatus;
+	/** A booking's details for the panel that opens on a click (not on purge buffers). */
+	booking?: {
+		userName: string;
+		/** Only for its holder and managers; others see who, not what for. */
+		purpose: string | null;
+		chemicalClasses: string[];
+		volatileSolvents: boolean;
+		purgeUntil: string | null;
+		/** The box's late-cancellation window, for the cancel confirmation's billing words. */
+		cancelWindowHours: number;
+		/** The viewer may edit or cancel it (its holder or a manager; open, not ended or checked out). */
+		canChange: boolean;
+		/** The viewer may drag it on the grid: their own, open, not started. */
+		movable: boolean;
+	};
+	/** An outage's reason, for its panel. */
+	reason?: string;
 };
+
+export type Viewer = { id: number; role: Role };
 
 /**
  * Bookings (with their purge buffers) and outages overlapping [start, end). The range
@@ -112,9 +138,11 @@ export async function events(
 	boxIds: number[] | 'all',
 	start: Date,
 	end: Date,
-	viewerId: number
+	viewer: Viewer,
+	now = new Date()
 ): Promise<CalendarEvent[]> {
 	const tz = config.facilityTz;
+	const manager = hasRole(viewer.role, 'manager');
 	const boxFilter = boxIds === 'all' ? undefined : inArray(bookings.boxId, boxIds);
 	const outageFilter = boxIds === 'all' ? undefined : inArray(outages.boxId, boxIds);
 	const [bookingRows, outageRows] = await Promise.all([
@@ -128,10 +156,15 @@ export async function events(
 				endAt: bookings.endAt,
 				blockedUntil: bookings.blockedUntil,
 				status: bookings.status,
-				purpose: bookings.purpose
+				purpose: bookings.purpose,
+				chemicalClasses: bookings.chemicalClasses,
+				volatileSolvents: bookings.volatileSolvents,
+				checkOutAt: bookings.checkOutAt,
+				cancelWindowHours: boxes.cancelWindowHours
 			})
 			.from(bookings)
 			.innerJoin(users, eq(users.id, bookings.userId))
+			.innerJoin(boxes, eq(boxes.id, bookings.boxId))
 			.where(
 				and(
 					boxFilter,
@@ -149,7 +182,9 @@ export async function events(
 	]);
 	const list: CalendarEvent[] = [];
 	for (const b of bookingRows) {
-		const mine = b.userId === viewerId;
+		const mine = b.userId === viewer.id;
+		// Still to be worked: pending or confirmed, not ended, not checked out.
+		const open = mayCancel(b, now);
 		// A no-show holds the box only until it was marked; the rest of its slot is free.
 		const noShow = b.status === 'no_show';
 		const end = noShow && b.blockedUntil < b.endAt ? b.blockedUntil : b.endAt;
@@ -162,7 +197,17 @@ export async function events(
 			title: `${mine ? `You: ${b.purpose}` : b.userName}${noShow ? ' (no-show)' : ''}`,
 			mine,
 			bookingId: b.id,
-			status: b.status
+			status: b.status,
+			booking: {
+				userName: b.userName,
+				purpose: mine || manager ? b.purpose : null,
+				chemicalClasses: b.chemicalClasses,
+				volatileSolvents: b.volatileSolvents,
+				purgeUntil: b.blockedUntil > b.endAt ? isoInZone(b.blockedUntil, tz) : null,
+				cancelWindowHours: b.cancelWindowHours,
+				canChange: open && (mine || manager),
+				movable: open && mine && b.startAt > now
+			}
 		});
 		if (b.blockedUntil > b.endAt) {
 			list.push({
@@ -186,8 +231,39 @@ export async function events(
 			end: isoInZone(o.endAt, tz),
 			title: `Out of service: ${o.reason}`,
 			mine: false,
-			outageId: o.id
+			outageId: o.id,
+			reason: o.reason
 		});
 	}
 	return list;
+}
+
+/** Bookings waiting for a manager's approval, soonest first. */
+export async function pendingBookings() {
+	return db
+		.select({
+			id: bookings.id,
+			startAt: bookings.startAt,
+			endAt: bookings.endAt,
+			purpose: bookings.purpose,
+			chemicalClasses: bookings.chemicalClasses,
+			volatileSolvents: bookings.volatileSolvents,
+			boxName: boxes.name,
+			userName: users.name,
+			createdAt: bookings.createdAt
+		})
+		.from(bookings)
+		.innerJoin(boxes, eq(boxes.id, bookings.boxId))
+		.innerJoin(users, eq(users.id, bookings.userId))
+		.where(eq(bookings.status, 'pending'))
+		.orderBy(asc(bookings.startAt));
+}
+
+/** How many bookings wait for a manager: the shell's badge, on every page, so a count. */
+export async function countPendingBookings(): Promise<number> {
+	const [row] = await db
+		.select({ n: sql<number>`count(*)` })
+		.from(bookings)
+		.where(eq(bookings.status, 'pending'));
+	return Number(row?.n ?? 0);
 }

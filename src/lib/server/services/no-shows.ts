@@ -10,6 +10,7 @@ import { bookings, boxes, users } from '../db/schema';
 import { bookingNoShow } from '../mail/messages';
 import { enqueue } from '../mail/outbox';
 import { audit } from './audit';
+import { notifyFreedWatches } from './watches';
 import { transaction } from '../db/transaction';
 
 export async function markNoShows(now = new Date()): Promise<number[]> {
@@ -57,6 +58,8 @@ export async function markNoShows(now = new Date()): Promise<number[]> {
 				entityId: id,
 				details: { graceMin: b.graceMin }
 			});
+			// The rest of the slot and its purge are free: someone may be watching that time.
+			await notifyFreedWatches(tx, b.boxId, { startAt: now, endAt: b.blockedUntil }, now);
 			const [person] = await tx
 				.select({ id: users.id, email: users.email, name: users.name })
 				.from(users)

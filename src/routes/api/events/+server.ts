@@ -12,5 +12,5 @@ export const GET: RequestHandler = async (event) => {
 	const range = rangeSchema.safeParse(Object.fromEntries(event.url.searchParams));
 	if (!range.success)
 		invalidInput(fieldErrors(range.error), 'Give start and end as ISO 8601 date-times.');
-	return json({ events: await events('all', range.data.start, range.data.end, user.id) });
+	return json({ events: await events('all', range.data.start, range.data.end, user) });
 };

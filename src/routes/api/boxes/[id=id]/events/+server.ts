@@ -15,5 +15,5 @@ export const GET: RequestHandler = async (event) => {
 	if (!range.success)
 		invalidInput(fieldErrors(range.error), 'Give start and end as ISO 8601 date-times.');
 	if (!(await boxExists(boxId))) fail(404, 'The box was not found.');
-	return json({ events: await events([boxId], range.data.start, range.data.end, user.id) });
+	return json({ events: await events([boxId], range.data.start, range.data.end, user) });
 };
