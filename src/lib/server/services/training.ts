@@ -1,6 +1,5 @@
 import { and, asc, desc, eq, gt, inArray, isNull } from 'drizzle-orm';
 import { DateTime } from 'luxon';
-import { hasRole } from '$lib/domain/roles';
 import { bookingPath } from '$lib/domain/training-requests';
 import type { GrantInput } from '$lib/validation/training';
 import {
@@ -19,7 +18,6 @@ import {
 	modulePrerequisites,
 	moduleTrainers,
 	trainingModules,
-	trainingRequests,
 	users
 } from '../db/schema';
 import { enqueue } from '../mail/outbox';
