@@ -108,7 +108,10 @@ describe('deactivation', () => {
 				endAt: new Date(now + 30 * 60_000),
 				blockedUntil: new Date(now + 30 * 60_000),
 				purpose: 'Under way',
-				status: 'confirmed'
+				status: 'confirmed',
+				// Checked in, so the scheduler's no-show sweep leaves it alone.
+				confirmedAt: new Date(now - 60 * 60_000),
+				checkInAt: new Date(now - 29 * 60_000)
 			})
 			.$returningId();
 
