@@ -1,33 +1,12 @@
 // What the calendar reads from the API: events (/api/boxes/:id/events, /api/events) and
 // bookings (/api/bookings…). Times are ISO 8601 with the facility zone's offset.
 import type { BookingStatus } from '$lib/domain/bookings';
+import type { CalendarEvent } from '$lib/domain/calendar-event';
 import { formatRange } from '$lib/domain/time';
 
 export type Reason = { code: string; message: string };
 
-export type ApiEvent = {
-	id: string;
-	kind: 'booking' | 'pending' | 'purge' | 'outage';
-	boxId: number;
-	start: string;
-	end: string;
-	title: string;
-	mine: boolean;
-	bookingId?: number;
-	outageId?: number;
-	status?: BookingStatus;
-	booking?: {
-		userName: string;
-		purpose: string | null;
-		chemicalClasses: string[];
-		volatileSolvents: boolean;
-		purgeUntil: string | null;
-		cancelWindowHours: number;
-		canChange: boolean;
-		movable: boolean;
-	};
-	reason?: string;
-};
+export type ApiEvent = CalendarEvent;
 
 export type ApiBooking = {
 	id: number;

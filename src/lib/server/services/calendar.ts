@@ -2,6 +2,7 @@
 // and outages in a range, for /api/boxes/:id/events and /api/events), a person's own list,
 // the approvals list, and one booking as the API gives it. Times carry the facility zone's
 // offset.
+import type { CalendarEvent } from '$lib/domain/calendar-event';
 import { and, asc, desc, eq, gt, inArray, lt, sql } from 'drizzle-orm';
 import { mayCancel } from '$lib/domain/booking-state';
 import { holdingStatuses, type BookingStatus } from '$lib/domain/bookings';
@@ -97,35 +98,7 @@ export async function bookingsOf(userId: number, now = new Date()) {
 	return { upcoming, past };
 }
 
-export type CalendarEvent = {
-	id: string;
-	kind: 'booking' | 'pending' | 'purge' | 'outage';
-	boxId: number;
-	start: string;
-	end: string;
-	title: string;
-	mine: boolean;
-	bookingId?: number;
-	outageId?: number;
-	status?: BookingStatus;
-	/** A booking's details for the panel that opens on a click (not on purge buffers). */
-	booking?: {
-		userName: string;
-		/** Only for its holder and managers; others see who, not what for. */
-		purpose: string | null;
-		chemicalClasses: string[];
-		volatileSolvents: boolean;
-		purgeUntil: string | null;
-		/** The box's late-cancellation window, for the cancel confirmation's billing words. */
-		cancelWindowHours: number;
-		/** The viewer may edit or cancel it (its holder or a manager; open, not ended or checked out). */
-		canChange: boolean;
-		/** The viewer may drag it on the grid: their own, open, not started. */
-		movable: boolean;
-	};
-	/** An outage's reason, for its panel. */
-	reason?: string;
-};
+export type { CalendarEvent };
 
 export type Viewer = { id: number; role: Role };
 
