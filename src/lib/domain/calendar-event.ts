@@ -16,6 +16,8 @@ export type CalendarEvent = {
 	/** A booking's details for the panel that opens on a click (not on purge buffers). */
 	booking?: {
 		userName: string;
+		/** The status in words, checked in or out included (booking-state.ts holderStatus). */
+		statusText: string;
 		/** Only for its holder and managers; others see who, not what for. */
 		purpose: string | null;
 		chemicalClasses: string[];

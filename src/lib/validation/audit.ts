@@ -23,12 +23,11 @@ export const auditFilterSchema = z
 		entityId: z.string().trim().max(64, 'Use at most 64 characters.').optional(),
 		from: day.optional(),
 		to: day.optional(),
-		page: z.coerce
-			.number({ error: 'Pages are numbered from 1.' })
-			.int('Pages are numbered from 1.')
-			.min(1, 'Pages are numbered from 1.')
-			.max(10_000, 'Narrow the filter instead of paging this far.')
-			.default(1)
+		// A page number from a hand-edited address that cannot be one shows the first page.
+		page: z.preprocess((v) => {
+			const n = Number(v);
+			return Number.isInteger(n) && n >= 1 ? Math.min(n, 10_000) : 1;
+		}, z.number())
 	})
 	.refine((f) => !f.from || !f.to || f.from <= f.to, {
 		message: 'The last day comes before the first.',

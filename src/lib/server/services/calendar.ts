@@ -4,7 +4,7 @@
 // offset.
 import type { CalendarEvent } from '$lib/domain/calendar-event';
 import { and, asc, desc, eq, gt, inArray, lt, sql } from 'drizzle-orm';
-import { mayCancel } from '$lib/domain/booking-state';
+import { holderStatus, mayCancel } from '$lib/domain/booking-state';
 import { holdingStatuses, type BookingStatus } from '$lib/domain/bookings';
 import { hasRole, type Role } from '$lib/domain/roles';
 import { isoInZone } from '$lib/domain/time';
@@ -132,6 +132,7 @@ export async function events(
 				purpose: bookings.purpose,
 				chemicalClasses: bookings.chemicalClasses,
 				volatileSolvents: bookings.volatileSolvents,
+				checkInAt: bookings.checkInAt,
 				checkOutAt: bookings.checkOutAt,
 				cancelWindowHours: boxes.cancelWindowHours
 			})
@@ -173,6 +174,7 @@ export async function events(
 			status: b.status,
 			booking: {
 				userName: b.userName,
+				statusText: holderStatus(b, tz),
 				purpose: mine || manager ? b.purpose : null,
 				chemicalClasses: b.chemicalClasses,
 				volatileSolvents: b.volatileSolvents,
