@@ -1,6 +1,6 @@
 import { config } from '$lib/server/config';
 import { countPendingFor, groupsLedBy } from '$lib/server/services/accounts';
-import { countPendingBookings } from '$lib/server/services/bookings';
+import { countPendingBookings } from '$lib/server/services/calendar';
 import { pendingCheck } from '$lib/server/services/checkins';
 import { unreadCount } from '$lib/server/services/notifications';
 import type { LayoutServerLoad } from './$types';

@@ -12,13 +12,15 @@ export type Message = {
 	ics?: string;
 };
 
-const escape = (s: string) =>
+/** Text made safe to stand in an e-mail's HTML. */
+export const escape = (s: string) =>
 	s.replace(
 		/[&<>"']/g,
 		(c) => ({ '&': '&amp;', '<': '&lt;', '>': '&gt;', '"': '&quot;', "'": '&#39;' })[c]!
 	);
 
-function html(paragraphs: string[]): string {
+/** An e-mail's HTML body: one paragraph each, already escaped where they hold text. */
+export function html(paragraphs: string[]): string {
 	return `<!doctype html><html><body style="font-family:sans-serif;color:#161c25">${paragraphs
 		.map((p) => `<p>${p}</p>`)
 		.join('')}</body></html>`;

@@ -3,15 +3,9 @@
 // notice together, so the two always say the same.
 import { formatDate } from '$lib/domain/time';
 import { config } from '../config';
-import type { Message } from './messages';
+import { escape, html, type Message } from './messages';
 
 export type Notice = { message: Message; inApp: { title: string; body: string; link: string } };
-
-const escape = (s: string) =>
-	s.replace(
-		/[&<>"']/g,
-		(c) => ({ '&': '&amp;', '<': '&lt;', '>': '&gt;', '"': '&quot;', "'": '&#39;' })[c]!
-	);
 
 function notice(
 	kind: string,
@@ -28,13 +22,11 @@ function notice(
 			kind,
 			subject: title,
 			text: [`Hello ${to},`, ...paragraphs, `${linkText}: ${url}`].join('\n\n'),
-			html: `<!doctype html><html><body style="font-family:sans-serif;color:#161c25">${[
+			html: html([
 				`Hello ${escape(to)},`,
 				...paragraphs.map(escape),
 				`<a href="${escape(url)}">${escape(linkText)}</a> · questions to ${escape(config.facilityContact)}`
-			]
-				.map((p) => `<p>${p}</p>`)
-				.join('')}</body></html>`
+			])
 		},
 		inApp: { title, body, link }
 	};

@@ -28,9 +28,6 @@ import {
 import { attempt, forbidden, notFound, ServiceError } from './errors';
 import { notifyFreedWatches } from './watches';
 
-// The approvals list and the shell's badge are reads; they live with the other reads.
-export { countPendingBookings, pendingBookings } from './calendar';
-
 /**
  * Books a free time offered after an outage cancelled `fromBookingId`: the same purpose,
  * chemicals and billing group as the booking it replaces, through the same rules as any.

@@ -10,7 +10,8 @@ import { transaction } from '../db/transaction';
 import type { Actor } from './accounts';
 import { audit } from './audit';
 import { forbidden, ServiceError } from './errors';
-import { moveOutage, openOutage, previewOutage } from './outages';
+import { previewOutage } from './outage-reads';
+import { moveOutage, openOutage } from './outages';
 
 type Q = Database | Transaction;
 

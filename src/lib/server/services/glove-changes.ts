@@ -38,7 +38,8 @@ import { notFound, ServiceError } from './errors';
 import { releaseCheck } from './leak-tests';
 import { returnToStock, takeFromStock } from './glove-stock';
 import { mustManage } from './glove-change-start';
-import { cancelledBy, closeOutage } from './outages';
+import { cancelledBy } from './outage-reads';
+import { closeOutage } from './outages';
 
 type Q = Database | Transaction;
 

@@ -13,13 +13,6 @@ import { transaction } from '../db/transaction';
 import { lockBox } from '../db/locks';
 
 // The read side (previews, what an outage cancelled) lives in outage-reads.ts.
-export {
-	cancelledBy,
-	outageDetail,
-	previewEnd,
-	previewExtension,
-	previewOutage
-} from './outage-reads';
 
 export type OutageInput = { start: Date; end: Date; kind: OutageKind; reason: string };
 

@@ -2,14 +2,8 @@ import { error } from '@sveltejs/kit';
 import { DateTime } from 'luxon';
 import { config } from '$lib/server/config';
 import { requireRole, requireUser } from '$lib/server/guard';
-import {
-	createOutage,
-	endOutage,
-	extendOutage,
-	previewEnd,
-	previewExtension,
-	previewOutage
-} from '$lib/server/services/outages';
+import { previewEnd, previewExtension, previewOutage } from '$lib/server/services/outage-reads';
+import { createOutage, endOutage, extendOutage } from '$lib/server/services/outages';
 import { gloveHistory, glovesOfBox } from '$lib/server/services/gloves';
 import { hasRole } from '$lib/domain/roles';
 import { idParam } from '$lib/server/params';

@@ -1,6 +1,7 @@
 import { hasRole } from '$lib/domain/roles';
 import { requirePiOrRole, requireRole } from '$lib/server/guard';
-import { decideBooking, pendingBookings } from '$lib/server/services/bookings';
+import { decideBooking } from '$lib/server/services/bookings';
+import { pendingBookings } from '$lib/server/services/calendar';
 import { approveAccount, declineAccount, pendingAccountsFor } from '$lib/server/services/accounts';
 import { decisionSchema } from '$lib/validation/account';
 import { approveBookingSchema, declineSchema } from '$lib/validation/bookings';

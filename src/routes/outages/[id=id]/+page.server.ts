@@ -2,7 +2,7 @@ import { error } from '@sveltejs/kit';
 import { requireRole } from '$lib/server/guard';
 import { idParam } from '$lib/server/params';
 import { attempt } from '$lib/server/services/errors';
-import { outageDetail } from '$lib/server/services/outages';
+import { outageDetail } from '$lib/server/services/outage-reads';
 import type { PageServerLoad } from './$types';
 
 export const load: PageServerLoad = async (event) => {

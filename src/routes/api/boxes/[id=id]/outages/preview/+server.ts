@@ -5,7 +5,7 @@ import { config } from '$lib/server/config';
 import { requireRole } from '$lib/server/guard';
 import { readJson } from '$lib/server/http';
 import { idParam } from '$lib/server/params';
-import { previewOutage } from '$lib/server/services/outages';
+import { previewOutage } from '$lib/server/services/outage-reads';
 import { previewSchema } from '$lib/validation/glove-changes';
 import type { RequestHandler } from './$types';
 
