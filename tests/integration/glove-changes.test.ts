@@ -3,6 +3,7 @@ import { afterAll, describe, expect, it } from 'vitest';
 import { and, eq, inArray, isNull } from 'drizzle-orm';
 import {
 	bookings,
+	boxes,
 	gloveChanges,
 	gloveStock,
 	gloves,
@@ -470,10 +471,21 @@ describe('damage reports', () => {
 			.where(eq(notifications.link, `/boxes/${boxId}/ports/${left.id}`));
 		expect(notices.length).toBeGreaterThan(0);
 		expect(notices[0].body).toContain('2 mm hole (fingertip, left hand)');
+		// The e-mail goes with the notice: one per manager told, about this box's port.
+		const [{ name }] = await testDb()
+			.select({ name: boxes.name })
+			.from(boxes)
+			.where(eq(boxes.id, boxId));
 		const mails = await testDb()
 			.select({ id: outbox.id })
 			.from(outbox)
-			.where(and(eq(outbox.kind, 'staff_notice')));
+			.where(
+				and(
+					eq(outbox.kind, 'staff_notice'),
+					eq(outbox.subject, `Glove damage on ${name}, front-left port`)
+				)
+			);
 		expect(mails.length).toBeGreaterThan(0);
+		expect(mails).toHaveLength(notices.length);
 	});
 });
