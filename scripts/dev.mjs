@@ -6,7 +6,8 @@ import {
 	loadEnvFile,
 	migrate,
 	root,
-	seed
+	seed,
+	startMailSink
 } from './lib/setup.mjs';
 
 loadEnvFile();
