@@ -1,7 +1,7 @@
 import { requireUser } from '$lib/server/guard';
 import { formId, runForm } from '$lib/server/forms';
 import { profile } from '$lib/server/services/accounts';
-import { bookingsOf } from '$lib/server/services/calendar';
+import { upcomingBookingsOf } from '$lib/server/services/calendar';
 import { listBoxes } from '$lib/server/services/boxes';
 import { certificationsOf } from '$lib/server/services/training';
 import { modulesWithoutTrainers } from '$lib/server/services/training-modules';
@@ -22,7 +22,7 @@ export const load: PageServerLoad = async (event) => {
 	const { user: shell } = await event.parent();
 	const [me, mine, boxes, certs] = await Promise.all([
 		profile(user.id),
-		bookingsOf(user.id),
+		upcomingBookingsOf(user.id),
 		listBoxes(),
 		certificationsOf(user.id)
 	]);
@@ -39,7 +39,7 @@ export const load: PageServerLoad = async (event) => {
 	]);
 	return {
 		group: me.group,
-		next: mine.upcoming.slice(0, 5),
+		next: mine.slice(0, 5),
 		boxes,
 		maintenance,
 		failed,

@@ -2,7 +2,13 @@ import { requireUser } from '$lib/server/guard';
 import { runConfirmedForm, runForm } from '$lib/server/forms';
 import { rebookOffers } from '$lib/server/services/alternatives';
 import { cancelBooking, rebook } from '$lib/server/services/bookings';
-import { bookingsOf } from '$lib/server/services/calendar';
+import {
+	pastBookingsList,
+	pastBookingsOf,
+	recentlyCancelledByOutage,
+	upcomingBookingsOf
+} from '$lib/server/services/calendar';
+import { readListQuery } from '$lib/domain/listing';
 import { cancellationConsequence, mayCancel } from '$lib/domain/booking-state';
 import { ServiceError } from '$lib/server/services/errors';
 import { formatRange } from '$lib/domain/time';
@@ -10,16 +16,21 @@ import { config } from '$lib/server/config';
 import { cancelFormSchema, rebookSchema } from '$lib/validation/bookings';
 import type { Actions, PageServerLoad } from './$types';
 
-const WEEK_MS = 7 * 86_400_000;
-
 export const load: PageServerLoad = async (event) => {
 	const user = requireUser(event);
-	const mine = await bookingsOf(user.id);
-	// Bookings an outage cancelled in the last week get fresh offers.
-	const hit = mine.past.filter(
-		(b) => b.cancelCause === 'outage' && b.startAt.getTime() > Date.now() - WEEK_MS
-	);
-	return { ...mine, rebook: await rebookOffers(user.id, hit) };
+	const query = readListQuery(event.url.searchParams, pastBookingsList);
+	const [upcoming, past, hit] = await Promise.all([
+		upcomingBookingsOf(user.id),
+		pastBookingsOf(user.id, query),
+		// Bookings an outage cancelled in the last week get fresh offers.
+		recentlyCancelledByOutage(user.id)
+	]);
+	return {
+		upcoming,
+		past: past.rows,
+		pastView: past.view,
+		rebook: await rebookOffers(user.id, hit)
+	};
 };
 
 export const actions: Actions = {
@@ -65,7 +76,7 @@ export const actions: Actions = {
  * out: the work is over). Undefined when it is not theirs; the service decides then.
  */
 async function cancellable(userId: number, bookingId: number, now: Date) {
-	const b = (await bookingsOf(userId, now)).upcoming.find((x) => x.id === bookingId);
+	const b = (await upcomingBookingsOf(userId, now)).find((x) => x.id === bookingId);
 	if (b && !mayCancel(b, now))
 		throw new ServiceError(409, 'This booking is checked out; it can no longer be cancelled.');
 	return b;

@@ -3,7 +3,9 @@
 // the approvals list, and one booking as the API gives it. Times carry the facility zone's
 // offset.
 import type { CalendarEvent } from '$lib/domain/calendar-event';
-import { and, asc, desc, eq, gt, inArray, lt, sql } from 'drizzle-orm';
+import { and, asc, count, eq, gt, inArray, like, lt, lte, ne, or, sql } from 'drizzle-orm';
+import type { ListQuery, ListSpec } from '$lib/domain/listing';
+import { orderOf, pageInSql } from '../listing';
 import { holderStatus, mayCancel } from '$lib/domain/booking-state';
 import { holdingStatuses, type BookingStatus } from '$lib/domain/bookings';
 import { hasRole, type Role } from '$lib/domain/roles';
@@ -69,33 +71,107 @@ export function toPublic(b: BookingView, tz = config.facilityTz): PublicBooking 
 	};
 }
 
-/** A person's bookings, newest first: those still to come (or under way) and the rest. */
-export async function bookingsOf(userId: number, now = new Date()) {
-	const rows = await db
-		.select({
-			id: bookings.id,
-			boxId: bookings.boxId,
-			boxName: boxes.name,
-			gas: boxes.gas,
-			startAt: bookings.startAt,
-			endAt: bookings.endAt,
-			purpose: bookings.purpose,
-			status: bookings.status,
-			cancelReason: bookings.cancelReason,
-			cancelCause: bookings.cancelCause,
-			volatileSolvents: bookings.volatileSolvents,
-			checkInAt: bookings.checkInAt,
-			checkOutAt: bookings.checkOutAt,
-			cancelWindowHours: boxes.cancelWindowHours
-		})
+const ownColumns = {
+	id: bookings.id,
+	boxId: bookings.boxId,
+	boxName: boxes.name,
+	gas: boxes.gas,
+	startAt: bookings.startAt,
+	endAt: bookings.endAt,
+	purpose: bookings.purpose,
+	status: bookings.status,
+	cancelReason: bookings.cancelReason,
+	cancelCause: bookings.cancelCause,
+	volatileSolvents: bookings.volatileSolvents,
+	checkInAt: bookings.checkInAt,
+	checkOutAt: bookings.checkOutAt,
+	cancelWindowHours: boxes.cancelWindowHours
+};
+
+/**
+ * A person's bookings still to come or under way, soonest first. The booking horizon bounds
+ * them, so they are read whole.
+ */
+export async function upcomingBookingsOf(userId: number, now = new Date()) {
+	return db
+		.select(ownColumns)
 		.from(bookings)
 		.innerJoin(boxes, eq(boxes.id, bookings.boxId))
-		.where(eq(bookings.userId, userId))
-		.orderBy(desc(bookings.startAt))
-		.limit(500);
-	const upcoming = rows.filter((b) => b.endAt > now && b.status !== 'cancelled').reverse();
-	const past = rows.filter((b) => !(b.endAt > now && b.status !== 'cancelled'));
-	return { upcoming, past };
+		.where(
+			and(eq(bookings.userId, userId), gt(bookings.endAt, now), ne(bookings.status, 'cancelled'))
+		)
+		.orderBy(asc(bookings.startAt), asc(bookings.id));
+}
+
+/** The view of a person's past and cancelled bookings: sorted, filtered and paged in SQL. */
+export const pastBookingsList = {
+	prefix: 'past',
+	sorts: ['when', 'box', 'status'],
+	defaultSort: 'when',
+	defaultDir: 'desc',
+	filters: { status: ['completed', 'confirmed', 'no_show', 'cancelled'] },
+	perPage: 20
+} as const satisfies ListSpec;
+
+/** One page of a person's past and cancelled bookings, with the total. */
+export async function pastBookingsOf(
+	userId: number,
+	query: ListQuery<(typeof pastBookingsList.sorts)[number], 'status'>,
+	now = new Date()
+) {
+	const words = query.q.split(/\s+/).filter(Boolean);
+	const where = and(
+		eq(bookings.userId, userId),
+		or(lte(bookings.endAt, now), eq(bookings.status, 'cancelled')),
+		query.filters.status ? eq(bookings.status, query.filters.status as BookingStatus) : undefined,
+		...words.map((w) => {
+			const pattern = `%${w.replace(/[\\%_]/g, (c) => `\\${c}`)}%`;
+			return or(like(boxes.name, pattern), like(bookings.purpose, pattern));
+		})
+	);
+	return pageInSql(
+		query,
+		async () => {
+			const [row] = await db
+				.select({ n: count() })
+				.from(bookings)
+				.innerJoin(boxes, eq(boxes.id, bookings.boxId))
+				.where(where);
+			return row.n;
+		},
+		(limit, offset) =>
+			db
+				.select(ownColumns)
+				.from(bookings)
+				.innerJoin(boxes, eq(boxes.id, bookings.boxId))
+				.where(where)
+				.orderBy(
+					...orderOf(
+						query,
+						{ when: bookings.startAt, box: boxes.name, status: bookings.status },
+						bookings.id
+					)
+				)
+				.limit(limit)
+				.offset(offset)
+	);
+}
+
+/** A person's bookings an outage cancelled whose time began in the last week. */
+export async function recentlyCancelledByOutage(userId: number, now = new Date()) {
+	return db
+		.select(ownColumns)
+		.from(bookings)
+		.innerJoin(boxes, eq(boxes.id, bookings.boxId))
+		.where(
+			and(
+				eq(bookings.userId, userId),
+				eq(bookings.status, 'cancelled'),
+				eq(bookings.cancelCause, 'outage'),
+				gt(bookings.startAt, new Date(now.getTime() - 7 * 86_400_000))
+			)
+		)
+		.orderBy(asc(bookings.startAt));
 }
 
 export type { CalendarEvent };

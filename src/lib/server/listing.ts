@@ -1,0 +1,30 @@
+import { asc, desc, type AnyColumn, type SQL, type SQLWrapper } from 'drizzle-orm';
+import { offsetOf, withinPages, type ListQuery, type ListView } from '$lib/domain/listing';
+
+/**
+ * The ORDER BY of a list's view: its sort column in its direction, then a unique column so
+ * that pages never overlap or skip a row when sort values tie.
+ */
+export function orderOf<S extends string>(
+	query: ListQuery<S>,
+	columns: Record<S, AnyColumn | SQLWrapper>,
+	tieBreak: AnyColumn
+): SQL[] {
+	const by = query.dir === 'asc' ? asc : desc;
+	return [by(columns[query.sort]), by(tieBreak)];
+}
+
+/**
+ * One page of a list that grows without bound, paged in SQL: the count first, so a page
+ * past the end shows the last one, then that page's rows. The total is always returned, so
+ * no list stops at a silent cut-off.
+ */
+export async function pageInSql<T, S extends string, F extends string>(
+	query: ListQuery<S, F>,
+	count: () => Promise<number>,
+	fetch: (limit: number, offset: number) => Promise<T[]>
+): Promise<{ rows: T[]; view: ListView<S, F> }> {
+	const view = withinPages(query, await count());
+	const rows = view.total ? await fetch(view.perPage, offsetOf(view)) : [];
+	return { rows, view };
+}
