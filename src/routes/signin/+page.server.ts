@@ -4,15 +4,11 @@ import { checkSignIn, signInMessages } from '$lib/server/services/accounts';
 import { signInSchema } from '$lib/validation/account';
 import { runForm } from '$lib/server/forms';
 import { ServiceError } from '$lib/server/services/errors';
+import { safeNext } from '$lib/server/next-path';
 import type { Actions, PageServerLoad } from './$types';
 
-/** Only same-site paths, so the sign-in page cannot be used to bounce people elsewhere. */
-function safeNext(next: string | null): string {
-	return next && next.startsWith('/') && !next.startsWith('//') ? next : '/';
-}
-
 export const load: PageServerLoad = async ({ locals, url }) => {
-	if (locals.user) redirect(303, safeNext(url.searchParams.get('next')));
+	if (locals.user) redirect(303, safeNext(url.searchParams.get('next'), url.origin));
 	return { registered: url.searchParams.has('registered') };
 };
 
@@ -28,6 +24,6 @@ export const actions: Actions = {
 		});
 		if (!('userId' in answer)) return answer;
 		await startSession(cookies, answer.userId);
-		redirect(303, safeNext(url.searchParams.get('next')));
+		redirect(303, safeNext(url.searchParams.get('next'), url.origin));
 	}
 };

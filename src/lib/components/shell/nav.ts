@@ -18,6 +18,7 @@ export function navFor(role: Role, isPi: boolean): NavItem[] {
 	if (isPi || hasRole(role, 'manager')) items.push({ href: '/groups', label: 'Groups' });
 	if (hasRole(role, 'manager')) items.push({ href: '/manage/statements', label: 'Statements' });
 	if (hasRole(role, 'manager')) items.push({ href: '/manage/gloves', label: 'Spare gloves' });
+	if (hasRole(role, 'manager')) items.push({ href: '/manage/labels', label: 'Box labels' });
 	if (hasRole(role, 'manager')) items.push({ href: '/manage/outbox', label: 'Outbox' });
 	if (hasRole(role, 'manager')) items.push({ href: '/reports', label: 'Reports' });
 	if (role === 'admin') items.push({ href: '/admin/users', label: 'Users and roles' });

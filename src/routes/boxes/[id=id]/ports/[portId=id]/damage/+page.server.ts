@@ -1,24 +1,13 @@
 import { error, fail, redirect } from '@sveltejs/kit';
-import { z } from 'zod';
-import { damageLocations } from '$lib/domain/gloves';
 import { requireRole, requireUser } from '$lib/server/guard';
 import { idParam } from '$lib/server/params';
-import { attempt, ServiceError } from '$lib/server/services/errors';
+import { attempt } from '$lib/server/services/errors';
 import { runForm } from '$lib/server/forms';
+import { reportPortDamage } from '$lib/server/services/damage-reports';
 import { startGloveChange } from '$lib/server/services/glove-change-start';
-import { portAndGlove, reportDamage } from '$lib/server/services/gloves';
-import { checkPhoto, put, remove } from '$lib/server/storage';
+import { portAndGlove } from '$lib/server/services/gloves';
+import { damageReportSchema } from '$lib/validation/gloves';
 import type { Actions, PageServerLoad } from './$types';
-
-const reportSchema = z.strictObject({
-	location: z.enum(damageLocations, { error: 'Where on the glove is the damage?' }),
-	hand: z.enum(['left', 'right'], { error: 'Which hand’s glove?' }),
-	holeSizeMm: z.coerce
-		.number({ error: 'Give the hole’s size in mm (your best estimate).' })
-		.min(0, 'The size cannot be negative.')
-		.max(1000, 'That is larger than any glove.'),
-	notes: z.string().trim().max(1000).optional()
-});
 
 /** The port and its glove, or the page's 404. */
 async function portOf(boxId: number, portId: number) {
@@ -35,36 +24,23 @@ export const load: PageServerLoad = async (event) => {
 export const actions: Actions = {
 	report: async (event) => {
 		const user = requireUser(event);
-		const { glove } = await portOf(
-			idParam(event.params.id, 'The box'),
-			idParam(event.params.portId, 'The port')
-		);
+		const boxId = idParam(event.params.id, 'The box');
+		const portId = idParam(event.params.portId, 'The port');
+		const { glove } = await portOf(boxId, portId);
 		if (!glove)
 			return fail(409, { values: {}, errors: {}, message: 'No glove is recorded on this port.' });
 		return runForm(
 			event.request,
-			reportSchema,
+			damageReportSchema,
 			async (input, form) => {
-				const photo = form.get('photo');
-				let photoKey: string | undefined;
-				if (photo instanceof File && photo.size > 0) {
-					const checked = await checkPhoto(photo);
-					if (!checked.ok)
-						throw new ServiceError(400, checked.message, { fields: { photo: checked.message } });
-					photoKey = await put('gloves', checked.bytes, checked.ext);
-				}
-				try {
-					const { catastrophic } = await reportDamage(user, {
-						gloveId: glove.id,
-						...input,
-						photoKey
-					});
-					return { reported: true, catastrophic, holeSizeMm: input.holeSizeMm };
-				} catch (e) {
-					// Nothing points at the photo without its report.
-					if (photoKey) await remove(photoKey).catch(() => undefined);
-					throw e;
-				}
+				const { catastrophic } = await reportPortDamage(
+					user,
+					boxId,
+					portId,
+					input,
+					form.get('photo')
+				);
+				return { reported: true, catastrophic, holeSizeMm: input.holeSizeMm };
 			},
 			{ omit: ['photo'] }
 		);
