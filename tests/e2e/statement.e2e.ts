@@ -57,9 +57,14 @@ test('a PI opens the group’s statement for last month and downloads the CSV', 
 		.toFormat('yyyy-MM');
 	await page.getByRole('link', { name: lastMonth, exact: true }).click();
 	await page.locator('body[data-hydrated="true"]').waitFor();
+	// The month written out ("November 2026"), in the facility's language whatever the browser's.
+	const monthName = DateTime.fromFormat(lastMonth, 'yyyy-MM', { locale: 'en-GB' }).toFormat(
+		'LLLL yyyy'
+	);
 	await expect(
-		page.getByRole('heading', { name: `Statement ${lastMonth}: Organometallic Synthesis` })
+		page.getByRole('heading', { name: `Statement for ${monthName}: Organometallic Synthesis` })
 	).toBeVisible();
+	await expect(page.getByTestId('statement-group')).toHaveText('Organometallic Synthesis');
 	const total = (await page.getByTestId('statement-total').textContent())!.trim();
 
 	const [download] = await Promise.all([
@@ -77,8 +82,21 @@ test('a PI opens the group’s statement for last month and downloads the CSV', 
 	expect(last[0]).toBe('total');
 	// The page shows the CSV's plain total with the currency (e.g. 84.38 → €84.38).
 	expect(total).toBe(formatMoney(toCents(last.at(-1)!), currency));
-	// One CSV line per row of the page's table, and the booking made above among them, billed.
-	expect(lines.length - 2).toBe(await page.locator('table.data-table tbody tr').count());
+	// One CSV line per line of the page's table (subtotals aside), and the booking made above
+	// among them, billed.
+	const table = page.getByTestId('statement-table');
+	expect(lines.length - 2).toBe(await table.locator('tr[data-line]').count());
+	// Every amount carries the currency: each line's, each box's subtotal and the total.
+	const sign = formatMoney(0, currency).replace(/[\d.,\s]/g, '');
+	const amounts = [
+		...(await table.locator('tr[data-line] td:last-child').allTextContents()),
+		...(await table.getByTestId('box-subtotal').allTextContents()),
+		total
+	];
+	for (const amount of amounts) expect(amount).toContain(sign);
+	await expect(table.locator(`tr[data-line="${made.id}"]`)).toContainText(
+		formatMoney(toCents(2 * kestrel.rate), currency)
+	);
 	expect(Number(last.at(-1))).toBeGreaterThan(0);
 	// 2 h at Kestrel's internal rate, not checked in: billed as booked.
 	const line = lines.find((l) => l.startsWith(`${made.id},Kestrel,`))!.split(',');

@@ -1,4 +1,5 @@
 import { error } from '@sveltejs/kit';
+import { config } from '$lib/server/config';
 import { codeFor } from '$lib/server/http';
 import { requireUser } from '$lib/server/guard';
 import { idParam } from '$lib/server/params';
@@ -15,5 +16,11 @@ export const load: PageServerLoad = async (event) => {
 			message: found.error.message,
 			code: found.error.code ?? codeFor(found.error.status)
 		});
-	return found.value;
+	return {
+		...found.value,
+		// The printed heading: who issues the statement and whom to ask about it.
+		facility: { name: config.facilityName, contact: config.facilityContact },
+		// A closed month was issued when it was closed; an open one is drawn up now.
+		issuedAt: found.value.closed?.closedAt ?? new Date()
+	};
 };
