@@ -35,7 +35,7 @@ async function saveBox(
 		minLengthMin: '30',
 		maxLengthMin: '240',
 		horizonDays: '28',
-		weeklyQuotaMin: '720',
+		weeklyQuotaHours: '12',
 		purgeMin: '30',
 		cancelWindowHours: '24',
 		noShowGraceMin: '15',
@@ -173,7 +173,7 @@ describe('editing a box', () => {
 			minLengthMin: '30',
 			maxLengthMin: '240',
 			horizonDays: '28',
-			weeklyQuotaMin: '720',
+			weeklyQuotaHours: '12',
 			purgeMin: '30'
 		});
 		for (const position of ['front-left', 'front-centre', 'front-right']) {

@@ -236,7 +236,7 @@ describe('monthly statement', () => {
 			minLengthMin: 30,
 			maxLengthMin: 240,
 			horizonDays: 28,
-			weeklyQuotaMin: 720,
+			weeklyQuotaHours: 12,
 			purgeMin: 30
 		});
 		expect(page.status).toBe(400);

@@ -1,5 +1,18 @@
 import { describe, expect, it } from 'vitest';
-import { clip, formatDuration, isoWeekOf, isoWeeksCovering, msWithin } from './time';
+import {
+	CLOCK_TIME_PATTERN,
+	clip,
+	formatDate,
+	formatDateLong,
+	formatDuration,
+	fromLocal,
+	hoursFromMinutes,
+	isoWeekOf,
+	isoWeeksCovering,
+	minutesFromHours,
+	msWithin,
+	parseClockTime
+} from './time';
 
 const tz = 'Europe/Berlin';
 const at = (iso: string) => new Date(iso);
@@ -88,5 +101,85 @@ describe('a length of time in words', () => {
 		expect(formatDuration(36 * 60, { days: true })).toBe('36 h');
 		expect(formatDuration(48 * 60, { days: true })).toBe('2 d');
 		expect(formatDuration(63 * 60 + 30, { days: true })).toBe('2 d 15 h');
+	});
+});
+
+describe('a time of day as typed, on the 24-hour clock', () => {
+	it('writes what people type as HH:MM', () => {
+		expect(parseClockTime('14:30')).toBe('14:30');
+		expect(parseClockTime('9:30')).toBe('09:30');
+		expect(parseClockTime('0930')).toBe('09:30');
+		expect(parseClockTime('930')).toBe('09:30');
+		expect(parseClockTime('1430')).toBe('14:30');
+		expect(parseClockTime('14.30')).toBe('14:30');
+		expect(parseClockTime('14h30')).toBe('14:30');
+		expect(parseClockTime(' 9 ')).toBe('09:00');
+		expect(parseClockTime('0')).toBe('00:00');
+		expect(parseClockTime('23:59')).toBe('23:59');
+	});
+
+	it('refuses what is not a time on a 24-hour clock', () => {
+		for (const text of [
+			'',
+			'24:00',
+			'25',
+			'9:60',
+			'960',
+			'12345',
+			'9:5',
+			'2pm',
+			'2:30 PM',
+			'noon',
+			'-1'
+		])
+			expect(parseClockTime(text), text).toBeNull();
+		expect(parseClockTime(null)).toBeNull();
+	});
+
+	it('is the same rule as the fields’ HTML pattern (anchored, as the browser anchors it)', () => {
+		const pattern = new RegExp(`^(?:${CLOCK_TIME_PATTERN})$`, 'v');
+		for (const text of ['14:30', '9:30', '0930', '930', '9', '23:59', '24:00', '9:5', '2pm', '960'])
+			expect(pattern.test(text), text).toBe(parseClockTime(text) !== null);
+	});
+
+	it('reads a typed time as wall-clock time in the facility zone', () => {
+		expect(fromLocal('2026-12-04', '930', tz)).toEqual(at('2026-12-04T08:30:00Z'));
+		expect(fromLocal('2026-12-04', '09:30', tz)).toEqual(at('2026-12-04T08:30:00Z'));
+		expect(fromLocal('2026-12-04', '9:5', tz)).toBeNull();
+		// 02:30 on 29 Mar 2026 is skipped when Berlin's clocks go forward.
+		expect(fromLocal('2026-03-29', '0230', tz)).toBeNull();
+	});
+});
+
+describe('dates written out, whatever the browser’s language', () => {
+	it('gives the weekday and the month in words', () => {
+		expect(formatDateLong('2026-12-04')).toBe('Friday 4 December 2026');
+		expect(formatDateLong('2027-01-31')).toBe('Sunday 31 January 2027');
+		expect(formatDateLong('')).toBe('');
+		expect(formatDateLong('2026-02-30')).toBe('');
+		expect(formatDateLong('4/12/2026')).toBe('');
+	});
+
+	it('names days in the facility’s language, not the runtime’s', async () => {
+		const { Settings } = await import('luxon');
+		const before = Settings.defaultLocale;
+		Settings.defaultLocale = 'de-DE';
+		try {
+			expect(formatDate(at('2026-12-04T09:00:00Z'), tz)).toBe('Fri 4 Dec 2026');
+			expect(formatDateLong('2026-12-04')).toBe('Friday 4 December 2026');
+		} finally {
+			Settings.defaultLocale = before;
+		}
+	});
+});
+
+describe('hours for a field that takes hours', () => {
+	it('goes from minutes to hours and back to the same minute', () => {
+		expect(hoursFromMinutes(720)).toBe('12');
+		expect(hoursFromMinutes(450)).toBe('7.5');
+		expect(hoursFromMinutes(100)).toBe('1.67');
+		for (const m of [0, 1, 59, 100, 450, 720, 10080])
+			expect(minutesFromHours(Number(hoursFromMinutes(m))), String(m)).toBe(m);
+		expect(minutesFromHours(7.5)).toBe(450);
 	});
 });

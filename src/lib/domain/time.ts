@@ -1,12 +1,51 @@
 import { DateTime } from 'luxon';
 
+/**
+ * The language of every date Boxwright writes out (weekday and month names), fixed so that
+ * the server's render and the browser's agree whatever either one's language is.
+ */
+export const FACILITY_LOCALE = 'en-GB';
+
 /** Local wall-clock parts of an instant in the facility's zone. */
 export function local(at: Date, tz: string): DateTime {
-	return DateTime.fromJSDate(at, { zone: tz });
+	return DateTime.fromJSDate(at, { zone: tz }).setLocale(FACILITY_LOCALE);
 }
 
-/** Interprets a date (YYYY-MM-DD) and time (HH:mm) as wall-clock time in `tz`. */
-export function fromLocal(date: string, time: string, tz: string): Date | null {
+/**
+ * A time of day as people type it on the 24-hour clock: "14:30", "9:30", "0930", "930",
+ * "14.30", "14h30", or just the hour ("9", "14"). Minutes are always two digits, so "9:5"
+ * (09:05 or 09:50?) is refused. The HTML `pattern` of the time fields: the same rule, so the
+ * browser and `parseClockTime` accept exactly the same text. No AM/PM: the facility's clock
+ * has 24 hours.
+ */
+export const CLOCK_TIME_PATTERN = '(?:[01]?[0-9]|2[0-3])(?:[:.h]?[0-5][0-9])?';
+const clockTime = new RegExp(`^${CLOCK_TIME_PATTERN}$`);
+
+/** Typed text on the 24-hour clock as "HH:mm" ("9:30" → "09:30", "0930" → "09:30"), or null. */
+export function parseClockTime(text: string | null | undefined): string | null {
+	const t = (text ?? '').trim();
+	if (!clockTime.test(t)) return null;
+	const digits = t.replace(/[:.h]/, '');
+	// The hour alone ("9", "14"), or the hour followed by two digits of minutes.
+	const [h, m] = digits.length <= 2 ? [digits, '00'] : [digits.slice(0, -2), digits.slice(-2)];
+	return `${h.padStart(2, '0')}:${m}`;
+}
+
+/** "Friday 4 December 2026": a date (YYYY-MM-DD) written out, whatever the browser's language; '' when it is not one. */
+export function formatDateLong(date: string | null | undefined): string {
+	const dt = DateTime.fromISO(date ?? '', { zone: 'UTC', locale: FACILITY_LOCALE });
+	return /^\d{4}-\d{2}-\d{2}$/.test(date ?? '') && dt.isValid
+		? dt.toFormat('cccc d LLLL yyyy')
+		: '';
+}
+
+/**
+ * Interprets a date (YYYY-MM-DD) and a time of day as typed (parseClockTime: "09:30", "930")
+ * as wall-clock time in `tz`.
+ */
+export function fromLocal(date: string, typed: string, tz: string): Date | null {
+	const time = parseClockTime(typed);
+	if (time === null) return null;
 	const dt = DateTime.fromISO(`${date}T${time}`, { zone: tz });
 	if (!dt.isValid) return null;
 	// A wall-clock time skipped by a spring-forward change does not exist: refuse it.
@@ -145,6 +184,18 @@ export function clip(
 	const b = Math.min(end.getTime(), to.getTime());
 	return b > a ? { start: new Date(a), end: new Date(b) } : null;
 }
+
+/** Minutes in a week: the most any weekly limit can be. */
+export const MINUTES_PER_WEEK = 7 * 24 * 60;
+
+/** Hours as entered (7.5) in whole minutes (450), to the nearest minute. */
+export const minutesFromHours = (hours: number) => Math.round(hours * 60);
+
+/**
+ * Minutes as hours for a field that takes hours: 720 → "12", 450 → "7.5", 100 → "1.67"
+ * (two decimals, which minutesFromHours reads back to the same minute).
+ */
+export const hoursFromMinutes = (minutes: number) => String(Math.round((minutes / 60) * 100) / 100);
 
 /**
  * A length of time in words, to the minute: "45 min", "3 h", "2 h 30 min". With `days`, from

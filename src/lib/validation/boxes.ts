@@ -1,6 +1,8 @@
 import { z } from 'zod';
 import { chemicalClassKeys, gases } from '$lib/domain/boxes';
 import { LONGEST_BOOKING_MS, LONGEST_PURGE_MS } from '$lib/domain/bookings';
+import { numberFromText } from '$lib/domain/inputs';
+import { MINUTES_PER_WEEK, minutesFromHours } from '$lib/domain/time';
 import { MAX_RATE } from '$lib/domain/usage';
 
 const minutes = (label: string, min: number, max: number) =>
@@ -9,6 +11,24 @@ const minutes = (label: string, min: number, max: number) =>
 		.int(`Enter ${label} in whole minutes.`)
 		.min(min, `${label[0].toUpperCase()}${label.slice(1)} must be at least ${min} min.`)
 		.max(max, `${label[0].toUpperCase()}${label.slice(1)} must be at most ${max} min.`);
+
+/**
+ * A length entered in hours, decimals allowed ("12", "7.5", "7,5"), kept as whole minutes:
+ * the weekly quota, which people think of in hours and the rules count in minutes.
+ */
+const hoursAsMinutes = (label: string, maxMinutes: number) =>
+	z
+		.preprocess(
+			(v) => (typeof v === 'string' ? numberFromText(v) : v),
+			z
+				.number({ error: `Enter ${label} in hours, e.g. 12 or 7.5.` })
+				.min(0, `${label[0].toUpperCase()}${label.slice(1)} cannot be negative.`)
+				.max(
+					maxMinutes / 60,
+					`${label[0].toUpperCase()}${label.slice(1)} must be at most ${maxMinutes / 60} h.`
+				)
+		)
+		.transform(minutesFromHours);
 
 const ppm = (label: string) =>
 	z.coerce
@@ -58,7 +78,8 @@ export const boxSchema = z
 			.int()
 			.min(1, 'At least 1 day ahead.')
 			.max(365, 'At most a year ahead.'),
-		weeklyQuotaMin: minutes('the weekly quota', 0, 10080),
+		/** Entered in hours; the box keeps minutes (weeklyQuotaMin, below). */
+		weeklyQuotaHours: hoursAsMinutes('the weekly quota', MINUTES_PER_WEEK),
 		purgeMin: minutes('the purge time', 0, LONGEST_PURGE_MS / 60_000),
 		needsApproval: z.coerce.boolean().default(false),
 		requiredLeakClass: z.coerce
@@ -120,7 +141,8 @@ export const boxSchema = z
 				path: ['maxLengthMin'],
 				message: 'Use a multiple of the slot step.'
 			});
-	});
+	})
+	.transform(({ weeklyQuotaHours, ...v }) => ({ ...v, weeklyQuotaMin: weeklyQuotaHours }));
 
 export type BoxInput = z.output<typeof boxSchema>;
 
