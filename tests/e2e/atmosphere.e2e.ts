@@ -9,8 +9,8 @@ test('a manager imports a sensor log with a report, records a reading and sees t
 	await page.getByRole('link', { name: /Heron/ }).first().click();
 	await page.locator('body[data-hydrated="true"]').waitFor();
 	await expect(page.getByRole('heading', { name: 'Atmosphere', exact: true })).toBeVisible();
-	// uPlot draws on a canvas once the week's readings are in.
-	await expect(page.getByTestId('atmosphere-chart').locator('canvas')).toBeVisible();
+	// uPlot draws on a canvas (one per gas) once the week's readings are in.
+	await expect(page.getByTestId('atmosphere-chart').locator('canvas').first()).toBeVisible();
 	// The warn and alarm levels are drawn as their own lines, named in the legend.
 	const chart = page.getByTestId('atmosphere-chart');
 	for (const name of ['O₂ warn', 'O₂ alarm', 'H₂O warn', 'H₂O alarm'])
@@ -42,20 +42,28 @@ test('a manager imports a sensor log with a report, records a reading and sees t
 		buffer: Buffer.from(lines.join('\n'))
 	};
 	await page.getByLabel('Sensor log (CSV: time, O2 ppm, H2O ppm)').setInputFiles(file);
-	await page.getByRole('button', { name: 'Import' }).click();
-	const report = page.getByTestId('import-report');
-	await expect(report).toContainText('Nothing was imported.');
-	await expect(report).toContainText('19 rows would be accepted');
-	await expect(report.getByRole('row', { name: /3 O₂ cannot be negative/ })).toBeVisible();
+	// The preview lists the rejected row and stores nothing while it stands.
+	const preview = page.getByTestId('import-preview');
+	await expect(preview.getByTestId('preview-count')).toHaveText(
+		'20 rows: 19 new readings, 0 already stored or repeated, 1 rejected'
+	);
+	await expect(
+		preview.getByRole('row', { name: /3 column "O2 ppm" holds "-3": O₂ cannot be negative/ })
+	).toBeVisible();
+	await expect(page.getByRole('button', { name: 'Import 19 readings' })).toBeDisabled();
 
 	await page.getByLabel('Import the good rows even if some are rejected').check();
-	await page.getByRole('button', { name: 'Import' }).click();
+	await page.getByRole('button', { name: 'Import 19 readings' }).click();
+	const report = page.getByTestId('import-report');
 	await expect(report).toContainText('Imported.');
 	await expect(report).toContainText('19 rows accepted, 0 skipped as duplicates, 1 rejected');
 
 	// The same file again adds nothing.
-	await page.getByRole('button', { name: 'Import' }).click();
-	await expect(report).toContainText('0 rows accepted, 19 skipped as duplicates');
+	await page.getByRole('button', { name: 'Check the file' }).click();
+	await expect(preview.getByTestId('preview-count')).toContainText(
+		'0 new readings, 19 already stored or repeated'
+	);
+	await expect(page.getByRole('button', { name: 'Import 0 readings' })).toBeDisabled();
 
 	await page.getByLabel('O₂ (ppm)').fill('0.6');
 	await page.getByLabel('H₂O (ppm)').fill('-1');

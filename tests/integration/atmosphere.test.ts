@@ -174,11 +174,17 @@ describe('CSV import', () => {
 				accepted: 2,
 				duplicates: 1,
 				rejectedCount: 4,
+				// Each reason quotes the cell as the file wrote it and names its column.
 				rejected: [
-					{ line: 3, reason: 'O₂ cannot be negative.' },
-					{ line: 4, reason: 'H₂O must be a number of ppm.' },
-					{ line: 5, reason: 'the time is in the future' },
-					{ line: 6, reason: expect.stringContaining('is not a time') }
+					{ line: 3, reason: 'column "O2 ppm" holds "-0.5": O₂ cannot be negative.' },
+					{ line: 4, reason: 'column "H2O ppm" holds "lots", which is not a number' },
+					{ line: 5, reason: `column "time" holds "${future}", which is in the future` },
+					{
+						line: 6,
+						reason: expect.stringContaining(
+							'column "time" holds "not a time", which is not a date and time'
+						)
+					}
 				]
 			}
 		});
@@ -199,7 +205,9 @@ describe('CSV import', () => {
 		const manager = await signedIn(await makeUser('manager'));
 		const header = await postCsv(manager, boxId, 'when,oxygen level,water\n1,2,3\n');
 		expect(header.status).toBe(400);
-		expect((await errorOf(header)).message).toContain('time, O2 ppm and H2O ppm');
+		expect((await errorOf(header)).message).toContain(
+			'The header line "when,oxygen level,water" names no column for the time.'
+		);
 
 		const png = Buffer.from([0x89, 0x50, 0x4e, 0x47, 0x0d, 0x0a, 0x1a, 0x0a, 0, 0, 0, 0x0d, 0xff]);
 		const binary = await manager.request(
