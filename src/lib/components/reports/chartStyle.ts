@@ -20,6 +20,22 @@ export function seriesStyle(i: number, colour?: string): SeriesStyle {
 	};
 }
 
+/**
+ * The axes in the palette and the page's font instead of uPlot's black on system-ui: labels
+ * in ink-600, grid lines and ticks in the light inks, so the bars carry the colour.
+ */
+export function axisStyle() {
+	const font = '12px "Nunito Sans", ui-sans-serif, system-ui, sans-serif';
+	return {
+		stroke: themeColour('ink-600'),
+		font,
+		labelFont: `600 ${font}`,
+		grid: { stroke: themeColour('ink-100'), width: 1 },
+		ticks: { stroke: themeColour('ink-200'), width: 1, size: 4 },
+		border: { show: true, stroke: themeColour('ink-300'), width: 1 }
+	};
+}
+
 /** The gas accent of a box: argon lavender-violet, nitrogen sea-teal. */
 export const gasColour = (gas: 'Ar' | 'N2') =>
 	themeColour(gas === 'Ar' ? 'argon-600' : 'nitrogen-600');
