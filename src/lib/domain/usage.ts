@@ -484,7 +484,7 @@ export const STATEMENT_CSV_HEADER =
  * tab or CR) gets a leading apostrophe: names come from users, and statements are opened in
  * spreadsheets (OWASP, CSV injection).
  */
-function field(text: string): string {
+export function field(text: string): string {
 	const safe = /^[=+\-@\t\r]/.test(text) ? `'${text}` : text;
 	return /[",\r\n]/.test(safe) ? `"${safe.replaceAll('"', '""')}"` : safe;
 }

@@ -1,15 +1,14 @@
 import { json } from '@sveltejs/kit';
-import { z } from 'zod';
 import { isoInZone } from '$lib/domain/time';
 import { serve } from '$lib/server/api';
 import { config } from '$lib/server/config';
 import { requireRole, requireUser } from '$lib/server/guard';
-import { fail, invalidInput, readJson } from '$lib/server/http';
+import { fail, readJson } from '$lib/server/http';
 import { idParam } from '$lib/server/params';
-import { readingSeries, recordReading } from '$lib/server/services/atmosphere';
-import { boxExists } from '$lib/server/services/boxes';
+import { recordReading } from '$lib/server/services/atmosphere';
+import { chartSeries } from '$lib/server/services/reading-series';
 import { readingSchema } from '$lib/validation/readings';
-import { isoDateTime } from '$lib/validation/bookings';
+import { readReadingRange } from '$lib/validation/reading-range';
 import type { RequestHandler } from './$types';
 
 export const POST: RequestHandler = async (event) => {
@@ -32,31 +31,19 @@ export const POST: RequestHandler = async (event) => {
 	);
 };
 
-const rangeSchema = z.object({ from: isoDateTime('from'), to: isoDateTime('to') });
-/** The longest range one request may chart. */
-const MAX_RANGE_DAYS = 400;
+/** The longest range one request may chart: a year and a bit. */
+const MAX_CHART_DAYS = 400;
 
-/** `?from=&to=` (ISO 8601), the last 7 days by default: a chart's series. */
+/**
+ * `?from=&to=` (ISO 8601 date-times, or dates as whole facility days), the last 7 days by
+ * default: the chart's series, raw or bucketed (db/reading-series.ts).
+ */
 export const GET: RequestHandler = async (event) => {
 	requireUser(event);
 	const boxId = idParam(event.params.id, 'The box');
-	if (!(await boxExists(boxId))) fail(404, 'The box was not found.');
-	const params = event.url.searchParams;
-	const now = new Date();
-	const parsed = rangeSchema.safeParse({
-		from: params.get('from') ?? new Date(now.getTime() - 7 * 86_400_000).toISOString(),
-		to: params.get('to') ?? now.toISOString()
+	const range = readReadingRange(event.url.searchParams, config.facilityTz, {
+		maxDays: MAX_CHART_DAYS
 	});
-	if (!parsed.success)
-		invalidInput(
-			Object.fromEntries(parsed.error.issues.map((i) => [String(i.path[0]), i.message])),
-			'Give from and to as ISO 8601 date-times.'
-		);
-	const { from, to } = parsed.data;
-	if (to <= from) invalidInput({ to: 'to must be after from.' }, 'That range is empty.');
-	if (to.getTime() - from.getTime() > MAX_RANGE_DAYS * 86_400_000)
-		fail(400, `Chart at most ${MAX_RANGE_DAYS} days at a time.`, {
-			fields: { from: 'That range is too long.' }
-		});
-	return json(await readingSeries(boxId, from, to));
+	if (!range.ok) fail(400, range.message, { fields: range.fields });
+	return json(await serve(() => chartSeries(boxId, range.from, range.to)));
 };
