@@ -1,0 +1,1 @@
+CREATE INDEX `atmosphere_readings_series_idx` ON `atmosphere_readings` (`box_id`,`at`,`o2_ppm`,`h2o_ppm`);
