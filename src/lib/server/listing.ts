@@ -1,4 +1,4 @@
-import { asc, desc, type AnyColumn, type SQL, type SQLWrapper } from 'drizzle-orm';
+import { and, asc, desc, like, or, type AnyColumn, type SQL, type SQLWrapper } from 'drizzle-orm';
 import { offsetOf, withinPages, type ListQuery, type ListView } from '$lib/domain/listing';
 
 /**
@@ -27,4 +27,19 @@ export async function pageInSql<T, S extends string, F extends string>(
 	const view = withinPages(query, await count());
 	const rows = view.total ? await fetch(view.perPage, offsetOf(view)) : [];
 	return { rows, view };
+}
+
+/**
+ * A free-text search as SQL: every word of `q` found in one of `columns` (LIKE, with the
+ * pattern's wildcards escaped). Undefined when the search is empty, so it drops out of and().
+ */
+export function matchesWords(q: string, columns: (AnyColumn | SQL)[]): SQL | undefined {
+	const words = q.split(/\s+/).filter(Boolean);
+	if (!words.length) return undefined;
+	return and(
+		...words.map((w) => {
+			const pattern = `%${w.replace(/[\\%_]/g, (c) => `\\${c}`)}%`;
+			return or(...columns.map((c) => like(c, pattern)));
+		})
+	);
 }

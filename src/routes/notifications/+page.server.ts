@@ -1,12 +1,23 @@
 import { requireUser } from '$lib/server/guard';
 import { runForm } from '$lib/server/forms';
-import { markAllRead, markRead, notificationsOf } from '$lib/server/services/notifications';
+import { readListQuery } from '$lib/domain/listing';
+import {
+	markAllRead,
+	markRead,
+	notificationsList,
+	notificationsPage,
+	unreadCount
+} from '$lib/server/services/notifications';
 import { markAllReadSchema, markReadSchema } from '$lib/validation/notifications';
 import type { Actions, PageServerLoad } from './$types';
 
 export const load: PageServerLoad = async (event) => {
 	const user = requireUser(event);
-	return { items: await notificationsOf(user.id) };
+	const [page, unread] = await Promise.all([
+		notificationsPage(user.id, readListQuery(event.url.searchParams, notificationsList)),
+		unreadCount(user.id)
+	]);
+	return { items: page.rows, view: page.view, unread };
 };
 
 export const actions: Actions = {

@@ -1,15 +1,7 @@
-import { and, asc, count, eq, inArray, sql } from 'drizzle-orm';
+import { and, asc, count, eq } from 'drizzle-orm';
 import { hasRole } from '$lib/domain/roles';
 import { db } from '../db';
-import {
-	groupMemberships,
-	moduleTrainers,
-	researchGroups,
-	trainingModules,
-	users,
-	type Role,
-	type UserStatus
-} from '../db/schema';
+import { groupMemberships, researchGroups, users, type Role } from '../db/schema';
 import { hashPassword, verifyDecoy, verifyPassword } from '../password';
 import { clearFailedSignIns, recordFailedSignIn, signInRetryAfter } from '../rate-limit';
 import { audit } from './audit';
@@ -286,50 +278,6 @@ export async function changePassword(userId: number, current: string, next: stri
 			entityId: userId
 		});
 	});
-}
-
-export type UserRow = {
-	id: number;
-	name: string;
-	email: string;
-	role: Role;
-	status: UserStatus;
-	groups: string;
-	/** The modules they teach (and so may certify for), by name. */
-	teaches: string[];
-};
-
-export async function listUsers(): Promise<UserRow[]> {
-	const rows = await db
-		.select({
-			id: users.id,
-			name: users.name,
-			email: users.email,
-			role: users.role,
-			status: users.status,
-			groups: sql<
-				string | null
-			>`GROUP_CONCAT(${researchGroups.name} ORDER BY ${researchGroups.name} SEPARATOR ', ')`
-		})
-		.from(users)
-		.leftJoin(
-			groupMemberships,
-			and(
-				eq(groupMemberships.userId, users.id),
-				inArray(groupMemberships.status, ['active', 'pending'])
-			)
-		)
-		.leftJoin(researchGroups, eq(researchGroups.id, groupMemberships.groupId))
-		.groupBy(users.id)
-		.orderBy(asc(users.name));
-	const taught = await db
-		.select({ userId: moduleTrainers.userId, name: trainingModules.name })
-		.from(moduleTrainers)
-		.innerJoin(trainingModules, eq(trainingModules.id, moduleTrainers.moduleId))
-		.orderBy(asc(trainingModules.name));
-	const teaches = new Map<number, string[]>();
-	for (const t of taught) teaches.set(t.userId, [...(teaches.get(t.userId) ?? []), t.name]);
-	return rows.map((r) => ({ ...r, groups: r.groups ?? '', teaches: teaches.get(r.id) ?? [] }));
 }
 
 /** Admins only. An admin cannot lower their own role, so a site always keeps one. */

@@ -1,6 +1,7 @@
 // Research groups: who leads them, who is in them, and what their people booked.
-import { and, asc, desc, eq, gte, inArray, lt, ne, sql } from 'drizzle-orm';
-import { openStatuses } from '$lib/domain/bookings';
+import { and, asc, count, desc, eq, gte, inArray, lt, ne, sql } from 'drizzle-orm';
+import { bookingStatuses, openStatuses, type BookingStatus } from '$lib/domain/bookings';
+import type { ListQuery, ListSpec } from '$lib/domain/listing';
 import { hasRole } from '$lib/domain/roles';
 import { db } from '../db';
 import { defaultGroupId } from '../db/queries';
@@ -18,6 +19,7 @@ import { audit } from './audit';
 import { forbidden, isDuplicateKey, notFound, ServiceError } from './errors';
 import { certificationState, standingByPersonAndModule } from '$lib/domain/certifications';
 import { transaction } from '../db/transaction';
+import { matchesWords, orderOf, pageInSql } from '../listing';
 
 /** Group names for the registration form (no PI or cost centre: that page is public). */
 export async function listGroupNames() {
@@ -109,27 +111,94 @@ export async function membersOf(groupId: number, now = new Date()) {
 	}));
 }
 
-/** The group's bookings from `from` to `to`, newest first. */
-export async function groupBookings(groupId: number, from: Date, to: Date) {
-	return db
-		.select({
-			id: bookings.id,
-			boxName: boxes.name,
-			userName: users.name,
-			startAt: bookings.startAt,
-			endAt: bookings.endAt,
-			status: bookings.status,
-			cancelCause: bookings.cancelCause,
-			purpose: bookings.purpose,
-			checkInAt: bookings.checkInAt,
-			checkOutAt: bookings.checkOutAt
-		})
-		.from(bookings)
-		.innerJoin(boxes, eq(boxes.id, bookings.boxId))
-		.innerJoin(users, eq(users.id, bookings.userId))
-		.where(and(eq(bookings.groupId, groupId), gte(bookings.endAt, from), lt(bookings.startAt, to)))
-		.orderBy(desc(bookings.startAt))
-		.limit(500);
+/** A facility's groups are few: sorted and searched in memory. */
+export const groupsList = {
+	sorts: ['name', 'pi', 'costCentre'],
+	defaultSort: 'name',
+	defaultDir: 'asc',
+	filters: { rates: ['internal', 'external'] },
+	perPage: 50
+} as const satisfies ListSpec;
+
+/** A group's bookings grow with every month: paged in SQL. */
+export const groupBookingsList = {
+	sorts: ['when', 'box', 'who', 'status'],
+	defaultSort: 'when',
+	defaultDir: 'desc',
+	filters: { period: ['ahead', 'past', 'all'], status: bookingStatuses },
+	perPage: 25
+} as const satisfies ListSpec;
+
+export type GroupBookingsQuery = ListQuery<
+	(typeof groupBookingsList.sorts)[number],
+	'period' | 'status'
+>;
+
+/** Without a period chosen, the list covers the last month and what is ahead. */
+export const RECENT_DAYS = 31;
+
+/**
+ * One page of the group's bookings, with the total: by default from a month ago on (every
+ * booking ahead included), or only those ahead, only past ones, or all; found by who booked,
+ * the box or the purpose.
+ */
+export async function groupBookingsPage(
+	groupId: number,
+	query: GroupBookingsQuery,
+	now = new Date()
+) {
+	const period = query.filters.period;
+	const where = and(
+		eq(bookings.groupId, groupId),
+		period === 'ahead'
+			? gte(bookings.endAt, now)
+			: period === 'past'
+				? lt(bookings.endAt, now)
+				: period === 'all'
+					? undefined
+					: gte(bookings.endAt, new Date(now.getTime() - RECENT_DAYS * 86_400_000)),
+		query.filters.status ? eq(bookings.status, query.filters.status as BookingStatus) : undefined,
+		matchesWords(query.q, [users.name, boxes.name, bookings.purpose])
+	);
+	return pageInSql(
+		query,
+		async () => {
+			const [row] = await db
+				.select({ n: count() })
+				.from(bookings)
+				.innerJoin(boxes, eq(boxes.id, bookings.boxId))
+				.innerJoin(users, eq(users.id, bookings.userId))
+				.where(where);
+			return row.n;
+		},
+		(limit, offset) =>
+			db
+				.select({
+					id: bookings.id,
+					boxName: boxes.name,
+					userName: users.name,
+					startAt: bookings.startAt,
+					endAt: bookings.endAt,
+					status: bookings.status,
+					cancelCause: bookings.cancelCause,
+					purpose: bookings.purpose,
+					checkInAt: bookings.checkInAt,
+					checkOutAt: bookings.checkOutAt
+				})
+				.from(bookings)
+				.innerJoin(boxes, eq(boxes.id, bookings.boxId))
+				.innerJoin(users, eq(users.id, bookings.userId))
+				.where(where)
+				.orderBy(
+					...orderOf(
+						query,
+						{ when: bookings.startAt, box: boxes.name, who: users.name, status: bookings.status },
+						bookings.id
+					)
+				)
+				.limit(limit)
+				.offset(offset)
+	);
 }
 
 async function membership(groupId: number, userId: number) {

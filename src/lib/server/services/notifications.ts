@@ -1,9 +1,11 @@
-import { and, desc, eq, inArray, isNull, sql } from 'drizzle-orm';
+import { and, count, desc, eq, inArray, isNull, sql } from 'drizzle-orm';
+import type { ListQuery, ListSpec } from '$lib/domain/listing';
 import { db, type Transaction } from '../db';
-import { notifications, outbox, users } from '../db/schema';
+import { notifications, outbox, outboxStatuses, users } from '../db/schema';
 import { staffNotice } from '../mail/messages';
 import { enqueueMany } from '../mail/outbox';
 import { transaction } from '../db/transaction';
+import { matchesWords, orderOf, pageInSql } from '../listing';
 
 export async function unreadCount(userId: number): Promise<number> {
 	const [row] = await db
@@ -20,6 +22,47 @@ export async function notificationsOf(userId: number, limit = 50) {
 		.where(eq(notifications.userId, userId))
 		.orderBy(desc(notifications.id))
 		.limit(limit);
+}
+
+/** A person's notices pile up: paged in SQL, newest first, all or only the unread. */
+export const notificationsList = {
+	sorts: ['when'],
+	defaultSort: 'when',
+	defaultDir: 'desc',
+	filters: { show: ['unread'] },
+	perPage: 25
+} as const satisfies ListSpec;
+
+export type NotificationsQuery = ListQuery<'when', 'show'>;
+
+/** One page of the person's notices, with the total. */
+export async function notificationsPage(userId: number, query: NotificationsQuery) {
+	const where = and(
+		eq(notifications.userId, userId),
+		query.filters.show === 'unread' ? isNull(notifications.readAt) : undefined
+	);
+	return pageInSql(
+		query,
+		async () => {
+			const [row] = await db.select({ n: count() }).from(notifications).where(where);
+			return row.n;
+		},
+		(limit, offset) =>
+			db
+				.select({
+					id: notifications.id,
+					title: notifications.title,
+					body: notifications.body,
+					link: notifications.link,
+					createdAt: notifications.createdAt,
+					readAt: notifications.readAt
+				})
+				.from(notifications)
+				.where(where)
+				.orderBy(...orderOf(query, { when: notifications.id }, notifications.id))
+				.limit(limit)
+				.offset(offset)
+	);
 }
 
 export async function markAllRead(userId: number, now = new Date()) {
@@ -69,25 +112,62 @@ export async function markRead(userId: number, ids: number[], now = new Date()) 
 	return unreadCount(userId);
 }
 
-/** The outbox for managers: newest first, optionally one status. */
-export async function outboxPage(status?: 'pending' | 'sending' | 'sent' | 'failed', limit = 100) {
-	return db
-		.select({
-			id: outbox.id,
-			toAddress: outbox.toAddress,
-			kind: outbox.kind,
-			subject: outbox.subject,
-			status: outbox.status,
-			attempts: outbox.attempts,
-			nextAttemptAt: outbox.nextAttemptAt,
-			lastError: outbox.lastError,
-			createdAt: outbox.createdAt,
-			sentAt: outbox.sentAt
-		})
-		.from(outbox)
-		.where(status ? eq(outbox.status, status) : undefined)
-		.orderBy(desc(outbox.id))
-		.limit(limit);
+/** The outbox as managers page through it: newest first, one status, found by words. */
+export const outboxList = {
+	sorts: ['queued', 'to', 'subject', 'status', 'attempts'],
+	defaultSort: 'queued',
+	defaultDir: 'desc',
+	filters: { status: outboxStatuses },
+	perPage: 50
+} as const satisfies ListSpec;
+
+/**
+ * One page of the outbox with the total: sorted, one status, every word of the search in the
+ * recipient's address or the subject.
+ */
+export async function outboxPage(query: ListQuery<(typeof outboxList.sorts)[number], 'status'>) {
+	const where = and(
+		query.filters.status
+			? eq(outbox.status, query.filters.status as (typeof outboxStatuses)[number])
+			: undefined,
+		matchesWords(query.q, [outbox.toAddress, outbox.subject])
+	);
+	return pageInSql(
+		query,
+		async () => (await db.select({ n: count() }).from(outbox).where(where))[0].n,
+		(limit, offset) =>
+			db
+				.select({
+					id: outbox.id,
+					toAddress: outbox.toAddress,
+					kind: outbox.kind,
+					subject: outbox.subject,
+					status: outbox.status,
+					attempts: outbox.attempts,
+					nextAttemptAt: outbox.nextAttemptAt,
+					lastError: outbox.lastError,
+					createdAt: outbox.createdAt,
+					sentAt: outbox.sentAt
+				})
+				.from(outbox)
+				.where(where)
+				.orderBy(
+					...orderOf(
+						query,
+						{
+							// Ids follow the order messages were queued in, and are indexed.
+							queued: outbox.id,
+							to: outbox.toAddress,
+							subject: outbox.subject,
+							status: outbox.status,
+							attempts: outbox.attempts
+						},
+						outbox.id
+					)
+				)
+				.limit(limit)
+				.offset(offset)
+	);
 }
 
 /**

@@ -1,5 +1,6 @@
 import { and, asc, desc, eq, gt, inArray, isNull } from 'drizzle-orm';
 import { DateTime } from 'luxon';
+import type { ListSpec } from '$lib/domain/listing';
 import { bookingPath } from '$lib/domain/training-requests';
 import type { GrantInput } from '$lib/validation/training';
 import {
@@ -311,6 +312,18 @@ export async function revokeCertification(actor: Actor, certificationId: number,
 }
 
 /** Users × modules, for managers and trainers: each cell the latest state. */
+/**
+ * The matrix's people, searched and paged in memory (it is built whole: every active person
+ * against every module), with a filter for who has a module expiring or lapsed.
+ */
+export const matrixList = {
+	sorts: ['name', 'email'],
+	defaultSort: 'name',
+	defaultDir: 'asc',
+	filters: { holds: ['expiring', 'expired'] },
+	perPage: 25
+} as const satisfies ListSpec;
+
 export async function certificationMatrix(now = new Date()) {
 	const [people, modules, certs] = await Promise.all([
 		db

@@ -1,5 +1,6 @@
 import { requireRole } from '$lib/server/guard';
 import {
+	AUDIT_PAGE_SIZE,
 	auditEntities,
 	auditEntries,
 	auditPeople,
@@ -31,6 +32,7 @@ export const load: PageServerLoad = async (event) => {
 		values,
 		errors: parsed.success ? {} : fieldErrors(parsed.error),
 		page: filter.page,
+		perPage: AUDIT_PAGE_SIZE,
 		hasOlder: page.hasOlder,
 		entries: page.rows.map((r) => ({
 			id: r.id,

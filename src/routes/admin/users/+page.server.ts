@@ -2,7 +2,9 @@ import { requireRole } from '$lib/server/guard';
 import { formatRange } from '$lib/domain/time';
 import { config } from '$lib/server/config';
 import { runConfirmedForm, runForm } from '$lib/server/forms';
-import { listUsers, setRole } from '$lib/server/services/accounts';
+import { setRole } from '$lib/server/services/accounts';
+import { usersList, usersPage } from '$lib/server/services/user-list';
+import { readListQuery } from '$lib/domain/listing';
 import { invite, resendInvitation, sendResetLink } from '$lib/server/services/account-tokens';
 import {
 	deactivateUser,
@@ -15,8 +17,9 @@ import type { Actions, PageServerLoad } from './$types';
 
 export const load: PageServerLoad = async (event) => {
 	const me = requireRole(event, 'admin');
-	const [users, groups] = await Promise.all([listUsers(), listGroupNames()]);
-	return { users, groups, myId: me.id };
+	const query = readListQuery(event.url.searchParams, usersList);
+	const [users, groups] = await Promise.all([usersPage(query), listGroupNames()]);
+	return { users: users.rows, view: users.view, groups, myId: me.id };
 };
 
 export const actions: Actions = {

@@ -7,12 +7,14 @@ import { attempt } from '$lib/server/services/errors';
 import {
 	activePeople,
 	decideMembership,
-	groupBookings,
+	groupBookingsList,
+	groupBookingsPage,
 	groupFor,
 	membersOf,
 	removeMember,
 	saveGroup
 } from '$lib/server/services/groups';
+import { readListQuery } from '$lib/domain/listing';
 import { recentMonths, usageThisMonth } from '$lib/server/services/statements';
 import { groupSchema, memberSchema } from '$lib/validation/groups';
 import { runConfirmedForm, runForm, type Ask } from '$lib/server/forms';
@@ -31,11 +33,7 @@ export const load: PageServerLoad = async (event) => {
 	const now = new Date();
 	const [members, recent, usage, months] = await Promise.all([
 		membersOf(id, now),
-		groupBookings(
-			id,
-			new Date(now.getTime() - 31 * 86_400_000),
-			new Date(now.getTime() + 60 * 86_400_000)
-		),
+		groupBookingsPage(id, readListQuery(event.url.searchParams, groupBookingsList), now),
 		usageThisMonth(group, now),
 		recentMonths(now)
 	]);
@@ -43,7 +41,8 @@ export const load: PageServerLoad = async (event) => {
 	return {
 		group,
 		members,
-		bookings: recent,
+		bookings: recent.rows,
+		bookingsView: recent.view,
 		usage,
 		months: months.slice(0, 6),
 		isManager,

@@ -7,8 +7,10 @@ import {
 	certificationMatrix,
 	grantCertification,
 	listModules,
+	matrixList,
 	revokeCertification
 } from '$lib/server/services/training';
+import { listInMemory, readListQuery } from '$lib/domain/listing';
 import {
 	createModule,
 	modulesTaughtBy,
@@ -36,8 +38,16 @@ export const load: PageServerLoad = async (event) => {
 		openRequestsFor(user),
 		isManager ? modulesWithoutTrainers() : []
 	]);
+	const people = listInMemory(matrix.rows, readListQuery(event.url.searchParams, matrixList), {
+		sortBy: { name: (r) => r.name, email: (r) => r.email },
+		text: (r) => `${r.name} ${r.email}`,
+		filter: { holds: (r, state) => r.cells.some((c) => c.state === state) }
+	});
 	return {
-		matrix,
+		matrix: { modules: matrix.modules, rows: people.rows },
+		matrixView: people.view,
+		// Everyone may be certified, whichever page of the matrix is shown.
+		people: matrix.rows.map((r) => ({ id: r.id, name: r.name })),
 		taught,
 		modules: modules.map((m) => ({
 			id: m.id,
