@@ -1,5 +1,5 @@
 import { describe, expect, it } from 'vitest';
-import { checkReading, describeReading, inSpec, nextAtmosphereState } from './atmosphere';
+import { checkReading, describeReading, gasLevel, inSpec, nextAtmosphereState } from './atmosphere';
 
 const t = { o2WarnPpm: 1, o2AlarmPpm: 10, h2oWarnPpm: 1, h2oAlarmPpm: 10 };
 
@@ -29,6 +29,12 @@ describe('readings', () => {
 			'H₂O 2 ppm is at or above the warn level of 1 ppm'
 		]);
 		expect(inSpec({ o2Ppm: 0.4, h2oPpm: 0.3 }, t)).toBe(true);
+	});
+	it('places one gas against its levels: warn counts from the level, alarm above it', () => {
+		expect(gasLevel(0.99, 1, 10)).toBe('ok');
+		expect(gasLevel(1, 1, 10)).toBe('warn');
+		expect(gasLevel(10, 1, 10)).toBe('warn');
+		expect(gasLevel(10.01, 1, 10)).toBe('alarm');
 	});
 	it('refuses negative, huge and non-numeric values', () => {
 		expect(checkReading({ o2Ppm: -1, h2oPpm: 2e6 })).toEqual({

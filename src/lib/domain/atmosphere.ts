@@ -31,17 +31,25 @@ export function nextAtmosphereState(
 	return current === 'alarm' ? 'alarm' : 'watch';
 }
 
+/** Where one gas's value stands against its levels: above alarm, at or above warn, or under. */
+export function gasLevel(ppm: number, warnPpm: number, alarmPpm: number): 'alarm' | 'warn' | 'ok' {
+	if (ppm > alarmPpm) return 'alarm';
+	if (ppm >= warnPpm) return 'warn';
+	return 'ok';
+}
+
 /** Which gases are above which level, in words, for banners and e-mails. */
 export function describeReading(reading: Reading, t: Thresholds): string[] {
 	const out: string[] = [];
-	if (reading.o2Ppm > t.o2AlarmPpm)
-		out.push(`O₂ ${reading.o2Ppm} ppm is above the alarm level of ${t.o2AlarmPpm} ppm`);
-	else if (reading.o2Ppm >= t.o2WarnPpm)
-		out.push(`O₂ ${reading.o2Ppm} ppm is at or above the warn level of ${t.o2WarnPpm} ppm`);
-	if (reading.h2oPpm > t.h2oAlarmPpm)
-		out.push(`H₂O ${reading.h2oPpm} ppm is above the alarm level of ${t.h2oAlarmPpm} ppm`);
-	else if (reading.h2oPpm >= t.h2oWarnPpm)
-		out.push(`H₂O ${reading.h2oPpm} ppm is at or above the warn level of ${t.h2oWarnPpm} ppm`);
+	for (const [gas, ppm, warn, alarm] of [
+		['O₂', reading.o2Ppm, t.o2WarnPpm, t.o2AlarmPpm],
+		['H₂O', reading.h2oPpm, t.h2oWarnPpm, t.h2oAlarmPpm]
+	] as const) {
+		const level = gasLevel(ppm, warn, alarm);
+		if (level === 'alarm') out.push(`${gas} ${ppm} ppm is above the alarm level of ${alarm} ppm`);
+		else if (level === 'warn')
+			out.push(`${gas} ${ppm} ppm is at or above the warn level of ${warn} ppm`);
+	}
 	return out;
 }
 

@@ -11,6 +11,14 @@ export const atmosphereStates = ['ok', 'watch', 'alarm'] as const;
 export type AtmosphereState = (typeof atmosphereStates)[number];
 
 export const readingSources = ['manual', 'check_in', 'check_out', 'csv'] as const;
+export type ReadingSource = (typeof readingSources)[number];
+/** Where a reading came from, as a list of readings says it. */
+export const readingSourceLabel: Record<ReadingSource, string> = {
+	manual: 'by hand',
+	check_in: 'check-in',
+	check_out: 'check-out',
+	csv: 'sensor log'
+};
 
 /** The state a person reads on a box card: one word and one shape each, never colour alone. */
 export type BoxCondition = 'in_service' | 'watch' | 'alarm' | 'out_of_service';
@@ -62,6 +70,24 @@ export const portPositions = [
 	'rear-left',
 	'rear-right'
 ] as const;
+
+/**
+ * A port named in words, side first and then the wall it is on: "front-left" is "left port,
+ * front", so a button can say which port it is for without the box face beside it. A
+ * position that is not one of portPositions reads as "<position> port".
+ */
+export function portName(position: string): string {
+	const [wall, side] = position.split('-');
+	const walls: Record<string, string> = {
+		front: 'front',
+		second: 'second row',
+		side: 'side wall',
+		rear: 'rear'
+	};
+	if (!side || !walls[wall] || !['left', 'right', 'centre'].includes(side))
+		return `${position} port`;
+	return `${side} port, ${walls[wall]}`;
+}
 
 /** The hand a glove on this port should be, from the operator's side, or null. */
 export function handForPosition(position: string): 'left' | 'right' | null {

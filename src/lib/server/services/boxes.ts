@@ -1,5 +1,6 @@
-import { and, asc, desc, eq, gt, inArray, isNull, lte, sql } from 'drizzle-orm';
+import { and, asc, count, desc, eq, gt, inArray, isNull, lte, sql } from 'drizzle-orm';
 import { boxCondition, type BoxCondition } from '$lib/domain/boxes';
+import type { ListQuery, ListSpec } from '$lib/domain/listing';
 import { gloveState, isDamaged, type GloveState } from '$lib/domain/gloves';
 import type { BoxInput } from '$lib/validation/boxes';
 import { db, type Transaction } from '../db';
@@ -21,6 +22,7 @@ import { resettle } from './atmosphere';
 import { isDuplicateKey, notFound, ServiceError } from './errors';
 import { transaction } from '../db/transaction';
 import { lockBox } from '../db/locks';
+import { orderOf, pageInSql } from '../listing';
 
 export type BoxSummary = {
 	id: number;
@@ -165,14 +167,30 @@ export async function getBox(id: number): Promise<{ box: Box; summary: BoxSummar
 	return { box, summary };
 }
 
-/** Outages and recent bookings for the box page's history section. */
-export async function boxOutages(boxId: number, limit = 20) {
-	return db
-		.select()
-		.from(outages)
-		.where(eq(outages.boxId, boxId))
-		.orderBy(desc(outages.startAt))
-		.limit(limit);
+/** The box page's outages: planned ones first, then back in time, a page at a time. */
+export const boxOutagesList = {
+	prefix: 'outages',
+	sorts: ['start'],
+	defaultSort: 'start',
+	defaultDir: 'desc',
+	perPage: 10
+} as const satisfies ListSpec;
+
+/** One page of a box's outages with the total, so older ones are paged to, never cut off. */
+export async function boxOutages(boxId: number, query: ListQuery<'start'>) {
+	const where = eq(outages.boxId, boxId);
+	return pageInSql(
+		query,
+		async () => (await db.select({ n: count() }).from(outages).where(where))[0].n,
+		(limit, offset) =>
+			db
+				.select()
+				.from(outages)
+				.where(where)
+				.orderBy(...orderOf(query, { start: outages.startAt }, outages.id))
+				.limit(limit)
+				.offset(offset)
+	);
 }
 
 /**

@@ -1,9 +1,11 @@
 // Leak tests saved against a box, with their inputs, result, class and pass/fail. What a test
 // amounts to is decided in domain/leak.ts; this module fetches the box's class and stores.
-import { and, desc, eq, gte, lt } from 'drizzle-orm';
+import { and, count, desc, eq, gte, lt } from 'drizzle-orm';
 import { fieldMessages } from '$lib/domain/inputs';
 import { checkLeakTest, judgeLeakTest, type IsoClass, type LeakTestInput } from '$lib/domain/leak';
+import type { ListQuery, ListSpec } from '$lib/domain/listing';
 import { hasRole } from '$lib/domain/roles';
+import { leakMethods, type LeakMethod } from '$lib/domain/upkeep';
 import { db, type Transaction } from '../db';
 import type { Database } from '../db/connect';
 import { atmosphereReadings, boxes, leakTests, users } from '../db/schema';
@@ -11,6 +13,7 @@ import type { Actor } from './accounts';
 import { audit } from './audit';
 import { forbidden, notFound, ServiceError } from './errors';
 import { transaction } from '../db/transaction';
+import { orderOf, pageInSql } from '../listing';
 
 export type { LeakTestInput };
 
@@ -60,25 +63,73 @@ export async function recordLeakTest(
 	});
 }
 
+const leakTestColumns = {
+	id: leakTests.id,
+	method: leakTests.method,
+	inputs: leakTests.inputs,
+	hourlyLeakRate: leakTests.hourlyLeakRate,
+	isoClass: leakTests.isoClass,
+	requiredClass: leakTests.requiredClass,
+	passed: leakTests.passed,
+	note: leakTests.note,
+	testedAt: leakTests.testedAt,
+	testedBy: users.name
+};
+
+/** A box's leak tests for the API, newest first. */
 export async function leakTestsOf(boxId: number, limit = 50) {
 	return db
-		.select({
-			id: leakTests.id,
-			method: leakTests.method,
-			inputs: leakTests.inputs,
-			hourlyLeakRate: leakTests.hourlyLeakRate,
-			isoClass: leakTests.isoClass,
-			requiredClass: leakTests.requiredClass,
-			passed: leakTests.passed,
-			note: leakTests.note,
-			testedAt: leakTests.testedAt,
-			testedBy: users.name
-		})
+		.select(leakTestColumns)
 		.from(leakTests)
 		.leftJoin(users, eq(users.id, leakTests.testedBy))
 		.where(eq(leakTests.boxId, boxId))
 		.orderBy(desc(leakTests.testedAt), desc(leakTests.id))
 		.limit(limit);
+}
+
+/** The box's leak-test history as a person pages through it. */
+export const leakTestList = {
+	sorts: ['when', 'rate', 'result'],
+	defaultSort: 'when',
+	defaultDir: 'desc',
+	filters: { result: ['pass', 'fail'], method: leakMethods },
+	perPage: 25
+} as const satisfies ListSpec;
+
+/** One page of a box's leak tests with the total: by date, rate or result; passed or failed. */
+export async function leakTestPage(
+	boxId: number,
+	query: ListQuery<(typeof leakTestList.sorts)[number], 'result' | 'method'>
+) {
+	const { result, method } = query.filters;
+	const where = and(
+		eq(leakTests.boxId, boxId),
+		result ? eq(leakTests.passed, result === 'pass') : undefined,
+		method ? eq(leakTests.method, method as LeakMethod) : undefined
+	);
+	return pageInSql(
+		query,
+		async () => (await db.select({ n: count() }).from(leakTests).where(where))[0].n,
+		(limit, offset) =>
+			db
+				.select(leakTestColumns)
+				.from(leakTests)
+				.leftJoin(users, eq(users.id, leakTests.testedBy))
+				.where(where)
+				.orderBy(
+					...orderOf(
+						query,
+						{
+							when: leakTests.testedAt,
+							rate: leakTests.hourlyLeakRate,
+							result: leakTests.passed
+						},
+						leakTests.id
+					)
+				)
+				.limit(limit)
+				.offset(offset)
+	);
 }
 
 /**

@@ -1,5 +1,5 @@
 // Recurring upkeep per box: what is due, who did it when, and the planned outages it needs.
-import { and, asc, desc, eq, isNull, lte, ne, or } from 'drizzle-orm';
+import { and, asc, eq, isNull, lte, ne, or } from 'drizzle-orm';
 import { hasRole } from '$lib/domain/roles';
 import { formatDateTime } from '$lib/domain/time';
 import {
@@ -13,7 +13,7 @@ import {
 import { config } from '../config';
 import { db, type Transaction } from '../db';
 import { lockBox } from '../db/locks';
-import { boxes, maintenanceLog, maintenanceTasks, outages, users } from '../db/schema';
+import { boxes, maintenanceLog, maintenanceTasks, outages } from '../db/schema';
 import type { Actor } from './accounts';
 import { audit } from './audit';
 import { forbidden, notFound, ServiceError } from './errors';
@@ -274,26 +274,6 @@ export async function dueTasks(now = new Date()) {
 		.where(and(eq(maintenanceTasks.active, true), lte(maintenanceTasks.nextDueAt, horizon)))
 		.orderBy(asc(maintenanceTasks.nextDueAt));
 	return withState(rows, now);
-}
-
-/** Who did a box's upkeep, and when, newest first. */
-export async function maintenanceHistory(boxId: number, limit = 50) {
-	return db
-		.select({
-			id: maintenanceLog.id,
-			title: maintenanceTasks.title,
-			kind: maintenanceTasks.kind,
-			doneAt: maintenanceLog.doneAt,
-			doneBy: users.name,
-			note: maintenanceLog.note,
-			outageId: maintenanceLog.outageId
-		})
-		.from(maintenanceLog)
-		.innerJoin(maintenanceTasks, eq(maintenanceTasks.id, maintenanceLog.taskId))
-		.leftJoin(users, eq(users.id, maintenanceLog.doneBy))
-		.where(eq(maintenanceTasks.boxId, boxId))
-		.orderBy(desc(maintenanceLog.doneAt), desc(maintenanceLog.id))
-		.limit(limit);
 }
 
 /**

@@ -7,7 +7,7 @@ import { hasRole } from '$lib/domain/roles';
 import { db, type Transaction } from '../db';
 import type { Database } from '../db/connect';
 import { startsFrom } from '../db/queries';
-import { bookings, boxes, gloveChanges, outages, outbox, users } from '../db/schema';
+import { bookings, boxes, boxPorts, gloveChanges, outages, outbox, users } from '../db/schema';
 import type { Actor } from './accounts';
 import { forbidden, notFound, ServiceError } from './errors';
 
@@ -173,8 +173,14 @@ export async function outageDetail(outageId: number) {
 		.where(eq(outages.id, outageId));
 	if (!row) throw notFound('The outage');
 	const changes = await db
-		.select({ id: gloveChanges.id, status: gloveChanges.status, portId: gloveChanges.portId })
+		.select({
+			id: gloveChanges.id,
+			status: gloveChanges.status,
+			portId: gloveChanges.portId,
+			position: boxPorts.position
+		})
 		.from(gloveChanges)
+		.innerJoin(boxPorts, eq(boxPorts.id, gloveChanges.portId))
 		.where(eq(gloveChanges.outageId, outageId));
 	return { ...row, changes, cancelled: await cancelledBy(outageId) };
 }

@@ -7,10 +7,12 @@ import { createOutage, endOutage, extendOutage } from '$lib/server/services/outa
 import { gloveHistory, glovesOfBox } from '$lib/server/services/gloves';
 import { hasRole } from '$lib/domain/roles';
 import { idParam } from '$lib/server/params';
-import { boxOutages, getBox } from '$lib/server/services/boxes';
+import { boxOutages, boxOutagesList, getBox } from '$lib/server/services/boxes';
+import { listInMemory, readListQuery, type ListSpec } from '$lib/domain/listing';
 import { attempt } from '$lib/server/services/errors';
 import { latestReadings, recordReading } from '$lib/server/services/atmosphere';
 import { documentsFor, mayManageDocuments } from '$lib/server/services/documents';
+import { readingCount } from '$lib/server/services/reading-list';
 import { readingSchema } from '$lib/validation/readings';
 import { endOutageSchema, moveOutageSchema, outageSchema } from '$lib/validation/outages';
 import { runConfirmedForm, runForm, type Ask } from '$lib/server/forms';
@@ -23,6 +25,7 @@ export const load: PageServerLoad = async (event) => {
 	const found = await attempt(() => getBox(id));
 	if (!found.ok) error(404, { message: 'That box was not found.', code: 'not_found' });
 	const { box, summary } = found.value;
+	const outageList = await boxOutages(id, readListQuery(event.url.searchParams, boxOutagesList));
 	return {
 		box: summary,
 		rules: {
@@ -45,11 +48,12 @@ export const load: PageServerLoad = async (event) => {
 		volumeL: box.volumeL,
 		description: box.description,
 		// Not begun yet: "End now" withdraws it instead (services/outages.ts closeOutage).
-		outages: (await boxOutages(id)).map((o) => ({
+		outages: outageList.rows.map((o) => ({
 			...o,
 			active: o.endAt > new Date(),
 			begun: o.startAt <= new Date()
 		})),
+		outagesView: outageList.view,
 		// Notes on readings are for the managers they were sent to.
 		readings: (await latestReadings(id, 8)).map((r) => ({
 			id: r.id,
@@ -59,13 +63,29 @@ export const load: PageServerLoad = async (event) => {
 			source: r.source,
 			note: hasRole(user.role, 'manager') ? r.note : null
 		})),
+		readingTotal: await readingCount(id),
 		documents: await documentsFor({ boxId: id }),
 		canManageDocuments: mayManageDocuments(user, 'box'),
 		gloves: await glovesOfBox(id),
-		gloveHistory: hasRole(user.role, 'manager') ? await gloveHistory(id) : [],
+		gloveHistory: hasRole(user.role, 'manager')
+			? listInMemory(
+					await gloveHistory(id),
+					readListQuery(event.url.searchParams, gloveHistoryList),
+					{ sortBy: { fitted: (g) => g.installedAt, port: (g) => g.position } }
+				)
+			: null,
 		outageDefaults: outageDefaults()
 	};
 };
+
+/** Every glove the box's ports have had: a few a year, so sorted and paged in memory. */
+const gloveHistoryList = {
+	prefix: 'gloves',
+	sorts: ['fitted', 'port'],
+	defaultSort: 'fitted',
+	defaultDir: 'desc',
+	perPage: 10
+} as const satisfies ListSpec;
 
 /** Start now (rounded down to 5 min), expected end in two hours, on the facility clock. */
 function outageDefaults() {

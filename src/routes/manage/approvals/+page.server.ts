@@ -1,3 +1,4 @@
+import { listInMemory, readListQuery, type ListSpec } from '$lib/domain/listing';
 import { hasRole } from '$lib/domain/roles';
 import { requirePiOrRole, requireRole } from '$lib/server/guard';
 import { decideBooking } from '$lib/server/services/bookings';
@@ -10,12 +11,48 @@ import { formatRange } from '$lib/domain/time';
 import { config } from '$lib/server/config';
 import type { Actions, PageServerLoad, RequestEvent } from './$types';
 
+// Both queues hold only what waits for a decision, so they are sorted and paged in memory.
+const accountsList = {
+	prefix: 'accounts',
+	sorts: ['name', 'group', 'registered'],
+	defaultSort: 'registered',
+	defaultDir: 'asc',
+	perPage: 25
+} as const satisfies ListSpec;
+
+const bookingsList = {
+	prefix: 'bookings',
+	sorts: ['when', 'box', 'who'],
+	defaultSort: 'when',
+	defaultDir: 'asc',
+	perPage: 25
+} as const satisfies ListSpec;
+
 export const load: PageServerLoad = async (event) => {
 	const user = await requirePiOrRole(event, 'manager');
 	const isManager = hasRole(user.role, 'manager');
+	const params = event.url.searchParams;
+	const accounts = listInMemory(
+		await pendingAccountsFor(user),
+		readListQuery(params, accountsList),
+		{
+			sortBy: { name: (a) => a.name, group: (a) => a.groupName, registered: (a) => a.registeredAt },
+			text: (a) => `${a.name} ${a.email} ${a.groupName}`
+		}
+	);
+	const bookings = listInMemory(
+		isManager ? await pendingBookings() : [],
+		readListQuery(params, bookingsList),
+		{
+			sortBy: { when: (b) => b.startAt, box: (b) => b.boxName, who: (b) => b.userName },
+			text: (b) => `${b.boxName} ${b.userName} ${b.purpose}`
+		}
+	);
 	return {
-		pending: await pendingAccountsFor(user),
-		bookings: isManager ? await pendingBookings() : [],
+		pending: accounts.rows,
+		pendingView: accounts.view,
+		bookings: bookings.rows,
+		bookingsView: bookings.view,
 		isManager
 	};
 };

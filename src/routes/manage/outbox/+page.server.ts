@@ -1,18 +1,17 @@
 import { z } from 'zod';
 import { requireRole } from '$lib/server/guard';
 import { retryMessage } from '$lib/server/mail/worker';
-import { outboxPage } from '$lib/server/services/notifications';
+import { outboxList, outboxPage } from '$lib/server/services/notifications';
+import { readListQuery } from '$lib/domain/listing';
 import { runForm } from '$lib/server/forms';
 import { ServiceError } from '$lib/server/services/errors';
 import type { Actions, PageServerLoad } from './$types';
 
-const statuses = ['pending', 'sending', 'sent', 'failed'] as const;
-
 export const load: PageServerLoad = async (event) => {
 	requireRole(event, 'manager');
-	const wanted = event.url.searchParams.get('status');
-	const status = statuses.find((s) => s === wanted);
-	return { rows: await outboxPage(status), status: status ?? null };
+	// `?status=failed` keeps working: the filter is the list's own parameter.
+	const { rows, view } = await outboxPage(readListQuery(event.url.searchParams, outboxList));
+	return { rows, view };
 };
 
 const retrySchema = z.strictObject({

@@ -1,11 +1,12 @@
 import { error } from '@sveltejs/kit';
+import { readListQuery } from '$lib/domain/listing';
 import { hasRole } from '$lib/domain/roles';
 import { runForm } from '$lib/server/forms';
 import { requireUser, requireRole } from '$lib/server/guard';
 import { idParam } from '$lib/server/params';
 import { getBox } from '$lib/server/services/boxes';
 import { attempt } from '$lib/server/services/errors';
-import { leakTestsOf, recordLeakTest } from '$lib/server/services/leak-tests';
+import { leakTestList, leakTestPage, recordLeakTest } from '$lib/server/services/leak-tests';
 import { leakTestFormSchema } from '$lib/validation/leak-tests';
 import type { Actions, PageServerLoad } from './$types';
 
@@ -15,6 +16,7 @@ export const load: PageServerLoad = async (event) => {
 	const found = await attempt(() => getBox(id));
 	if (!found.ok) error(404, { message: 'That box was not found.', code: 'not_found' });
 	const { box } = found.value;
+	const history = await leakTestPage(id, readListQuery(event.url.searchParams, leakTestList));
 	return {
 		box: {
 			id: box.id,
@@ -22,7 +24,8 @@ export const load: PageServerLoad = async (event) => {
 			volumeL: box.volumeL,
 			requiredLeakClass: box.requiredLeakClass
 		},
-		tests: await leakTestsOf(id),
+		tests: history.rows,
+		view: history.view,
 		canRecord: hasRole(user.role, 'manager')
 	};
 };

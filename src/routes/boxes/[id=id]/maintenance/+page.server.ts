@@ -9,13 +9,14 @@ import { attempt, ServiceError } from '$lib/server/services/errors';
 import {
 	completeTask,
 	createTask,
-	maintenanceHistory,
 	planOutage,
 	retireTask,
 	tasksOf,
 	updateTask
 } from '$lib/server/services/maintenance';
 import { formId, runConfirmedForm, runForm } from '$lib/server/forms';
+import { maintenanceHistory, upkeepLogList } from '$lib/server/services/upkeep-log';
+import { readListQuery } from '$lib/domain/listing';
 import { formatRange } from '$lib/domain/time';
 import {
 	editTaskSchema,
@@ -31,10 +32,12 @@ export const load: PageServerLoad = async (event) => {
 	const id = idParam(event.params.id, 'The box');
 	const found = await attempt(() => getBox(id));
 	if (!found.ok) error(404, { message: 'That box was not found.', code: 'not_found' });
+	const log = await maintenanceHistory(id, readListQuery(event.url.searchParams, upkeepLogList));
 	return {
 		box: { id, name: found.value.box.name },
 		tasks: await tasksOf(id),
-		history: await maintenanceHistory(id),
+		history: log.rows,
+		historyView: log.view,
 		canManage: hasRole(user.role, 'manager')
 	};
 };
