@@ -114,13 +114,18 @@ export function listHref(
 	return text ? `?${text}` : '?';
 }
 
+/** A count with thousands grouped the facility's way: 524,274. */
+export function count(n: number): string {
+	return n.toLocaleString('en-GB');
+}
+
 /** "26–50 of 132", or "3 of 3" when it all fits on one page. */
 export function rangeWords(view: ListView, shown: number): string {
 	if (view.total === 0) return 'None';
 	const first = offsetOf(view) + 1;
 	const last = first + shown - 1;
-	if (view.pages === 1) return `${view.total} in all`;
-	return `${first}–${last} of ${view.total}`;
+	if (view.pages === 1) return `${count(view.total)} in all`;
+	return `${count(first)}–${count(last)} of ${count(view.total)}`;
 }
 
 type SortValue = string | number | boolean | Date | null | undefined;
