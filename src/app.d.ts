@@ -9,6 +9,8 @@ declare global {
 		interface Locals {
 			user: import('lucia').User | null;
 			session: import('lucia').Session | null;
+			/** X-Request-Id: in the response header, the log lines and the outbox rows. */
+			requestId: string;
 		}
 	}
 }

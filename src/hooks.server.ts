@@ -5,8 +5,12 @@ import { readSession } from '$lib/server/auth';
 import { config } from '$lib/server/config';
 import { pool } from '$lib/server/db';
 import { shapeApiError } from '$lib/server/http';
+import { httpGuards } from '$lib/server/http-guards';
+import { csrf } from '$lib/server/csrf';
+import { defaultAction } from '$lib/server/default-action';
 import { startWorker, stopWorker } from '$lib/server/mail/worker';
 import { startScheduler, stopScheduler } from '$lib/server/scheduler';
+import { logRequestError, observe } from '$lib/server/observability';
 
 // Paths that answer clients (and links opened outside a page) in the contract's error shape.
 const isApi = (path: string) =>
@@ -27,13 +31,12 @@ const apiErrors: Handle = async ({ event, resolve }) => {
 	return shapeApiError(await resolve(event));
 };
 
-export const handle = sequence(apiErrors, session);
+export const handle = sequence(observe, httpGuards, csrf, defaultAction, apiErrors, session);
 
 export const handleError: HandleServerError = ({ error, event, status, message }) => {
 	if (status === 404) return { message: 'Not found.', code: 'not_found' };
-	// Feed paths carry secrets; they never reach a log.
-	const path = event.url.pathname.replace(/^\/ical\/users\/[^/]+/, '/ical/users/[token]');
-	console.error(`[boxwright] ${event.request.method} ${path}:`, error);
+	// With the request's id; token paths (feeds, resets, invitations) are redacted.
+	logRequestError(error, event, status);
 	return {
 		message: status >= 500 ? 'Something went wrong on our side. Please try again.' : message,
 		code: status >= 500 ? 'internal' : undefined

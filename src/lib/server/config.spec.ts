@@ -142,4 +142,24 @@ describe('parseSettings', () => {
 			'S3_FORCE_PATH_STYLE: true or false'
 		);
 	});
+
+	it('reads the operator settings: log level, metrics token, readiness bounds', () => {
+		const s = parseSettings({});
+		expect(s.logLevel).toBe('info');
+		expect(s.metricsToken).toBeNull();
+		expect(s.ready).toEqual({ outboxAgeSeconds: 600, databaseMs: 1000, schedulerLateMs: 300_000 });
+		expect(parseSettings({ SCHEDULER_POLL_MS: '300' }).ready.schedulerLateMs).toBe(1500);
+		const set = parseSettings({
+			LOG_LEVEL: 'WARN',
+			METRICS_TOKEN: 'a-long-enough-token',
+			READY_SCHEDULER_LATE_MS: '30000'
+		});
+		expect(set).toMatchObject({ logLevel: 'warn', metricsToken: 'a-long-enough-token' });
+		expect(set.ready.schedulerLateMs).toBe(30_000);
+		expect(() => parseSettings({ LOG_LEVEL: 'loud' })).toThrow('LOG_LEVEL: one of fatal');
+		// The refusal never repeats the token.
+		expect(() => parseSettings({ METRICS_TOKEN: 'tiny-secret' })).toThrow(
+			/^METRICS_TOKEN: at least 16 characters without spaces$/
+		);
+	});
 });

@@ -57,6 +57,23 @@ const yesNo = () =>
 		.refine((s) => /^(1|true|yes|0|false|no)$/.test(s), { error: 'true or false' })
 		.transform((s) => /^(1|true|yes)$/.test(s));
 
+/** A size in bytes as adapter-node writes BODY_SIZE_LIMIT: 65536, 64K, 25M. */
+const bytes = (min: number) =>
+	z
+		.string()
+		.trim()
+		.toUpperCase()
+		.refine((s) => /^\d+[KMG]?$/.test(s) && sizeInBytes(s) >= min, {
+			error: `a size of at least ${min} bytes, such as 65536, 64K or 1M`
+		})
+		.transform(sizeInBytes);
+
+function sizeInBytes(s: string): number {
+	const units: Record<string, number> = { K: 1024, M: 1024 ** 2, G: 1024 ** 3 };
+	const unit = units[s.slice(-1)];
+	return unit ? Number(s.slice(0, -1)) * unit : Number(s);
+}
+
 /** Uploads: local disk under BOXWRIGHT_DATA_DIR, or S3 (any compatible store) with S3_BUCKET. */
 const storageVariables = z.object({
 	BOXWRIGHT_DATA_DIR: z.string().default('.data'),
@@ -106,15 +123,43 @@ const variables = storageVariables.extend({
 	SIGNIN_LIMIT_ACCOUNT: whole(1).default(5),
 	SIGNIN_LIMIT_ADDRESS: whole(1).default(50),
 	SIGNIN_WINDOW_SECONDS: whole(1).default(900),
+	REGISTER_LIMIT_ADDRESS: whole(1).default(20),
+	REGISTER_LIMIT_EMAIL: whole(1).default(5),
+	REGISTER_WINDOW_SECONDS: whole(1).default(3600),
+	RESET_LIMIT_ADDRESS: whole(1).default(20),
+	RESET_LIMIT_EMAIL: whole(1).default(5),
+	RESET_WINDOW_SECONDS: whole(1).default(3600),
 	FEED_LIMIT_TOKEN: whole(1).default(60),
 	FEED_LIMIT_ADDRESS: whole(1).default(300),
+	BODY_LIMIT_DEFAULT: bytes(4096).default(64 * 1024),
 
 	OUTBOX_WORKER: onOff().default(true),
 	OUTBOX_POLL_MS: millis().default(1000),
 	OUTBOX_BACKOFF_MS: millis().default(2000),
 	OUTBOX_MAX_ATTEMPTS: whole(1, 1000).default(8),
 	SCHEDULER: onOff().default(true),
-	SCHEDULER_POLL_MS: millis().default(60_000)
+	SCHEDULER_POLL_MS: millis().default(60_000),
+
+	LOG_LEVEL: z
+		.string()
+		.trim()
+		.toLowerCase()
+		.pipe(
+			z.enum(['fatal', 'error', 'warn', 'info', 'debug', 'trace', 'silent'], {
+				error: 'one of fatal, error, warn, info, debug, trace, silent'
+			})
+		)
+		.default('info'),
+	METRICS_TOKEN: z
+		.string()
+		.trim()
+		.refine((s) => s.length >= 16 && !/\s/.test(s), {
+			error: 'at least 16 characters without spaces'
+		})
+		.optional(),
+	READY_OUTBOX_AGE_SECONDS: whole(1).default(600),
+	READY_DB_MS: whole(1).default(1000),
+	READY_SCHEDULER_LATE_MS: millis().optional()
 });
 
 /** An empty or blank variable (`X=` in a .env file) counts as unset. */
@@ -181,13 +226,29 @@ export function parseSettings(env: Env) {
 		mailFrom: e.MAIL_FROM,
 		/** The local mail sink's folder (development and tests), set by the scripts. */
 		mailSinkDir: e.MAIL_SINK_DIR ?? null,
-		/** Failed sign-ins allowed per e-mail and address, and per address, in the window. */
+		/**
+		 * Wrong passwords allowed in the window per account (from every address together) and
+		 * per address (whatever the account); see server/rate-limit.ts.
+		 */
 		signInLimitPerAccount: e.SIGNIN_LIMIT_ACCOUNT,
 		signInLimitPerAddress: e.SIGNIN_LIMIT_ADDRESS,
 		signInWindowSeconds: e.SIGNIN_WINDOW_SECONDS,
+		/** Registrations allowed per address and per e-mail in their window, right or wrong. */
+		registerLimitPerAddress: e.REGISTER_LIMIT_ADDRESS,
+		registerLimitPerEmail: e.REGISTER_LIMIT_EMAIL,
+		registerWindowSeconds: e.REGISTER_WINDOW_SECONDS,
+		/** "Forgot your password?" requests allowed per address and per e-mail in their window. */
+		resetLimitPerAddress: e.RESET_LIMIT_ADDRESS,
+		resetLimitPerEmail: e.RESET_LIMIT_EMAIL,
+		resetWindowSeconds: e.RESET_WINDOW_SECONDS,
 		/** Calendar feed requests allowed per minute, per token and per address. */
 		feedLimitPerToken: e.FEED_LIMIT_TOKEN,
 		feedLimitPerAddress: e.FEED_LIMIT_ADDRESS,
+		/**
+		 * The largest request body on routes that take no upload (JSON, forms); the upload
+		 * routes have their own caps (server/http-guards.ts).
+		 */
+		bodyLimitDefault: e.BODY_LIMIT_DEFAULT,
 		/** Whether this process drains the outbox (OUTBOX_WORKER=off leaves it to others). */
 		outboxWorker: e.OUTBOX_WORKER,
 		outboxPollMs: e.OUTBOX_POLL_MS,
@@ -197,6 +258,19 @@ export function parseSettings(env: Env) {
 		/** Whether this process runs the periodic jobs (SCHEDULER=off leaves them to others). */
 		scheduler: e.SCHEDULER,
 		schedulerPollMs: e.SCHEDULER_POLL_MS,
+		/** pino's level for the JSON log lines on stdout. */
+		logLevel: e.LOG_LEVEL,
+		/** The bearer token /metrics asks for; without it /metrics answers 404. */
+		metricsToken: e.METRICS_TOKEN ?? null,
+		/** Readiness (/api/health/ready) answers 503 past any of these. */
+		ready: {
+			/** The oldest message still waiting to leave, in seconds. */
+			outboxAgeSeconds: e.READY_OUTBOX_AGE_SECONDS,
+			/** A `SELECT 1` round trip, in ms. */
+			databaseMs: e.READY_DB_MS,
+			/** Since the scheduler last finished a round (when it runs here), in ms. */
+			schedulerLateMs: e.READY_SCHEDULER_LATE_MS ?? 5 * e.SCHEDULER_POLL_MS
+		},
 		storage: storageSettings(env)
 	};
 }

@@ -44,7 +44,9 @@ export const outbox = mysqlTable(
 		createdAt: datetime({ mode: 'date', fsp: 3 })
 			.notNull()
 			.default(sql`CURRENT_TIMESTAMP(3)`),
-		sentAt: datetime({ mode: 'date', fsp: 3 })
+		sentAt: datetime({ mode: 'date', fsp: 3 }),
+		/** X-Request-Id of the request that queued it (null from the scheduler or a script). */
+		requestId: varchar({ length: 36 })
 	},
 	(t) => [index('outbox_due_idx').on(t.status, t.nextAttemptAt)]
 );

@@ -1,6 +1,7 @@
 import type { Database } from '../db/connect';
 import type { Transaction } from '../db';
 import { notifications, outbox } from '../db/schema';
+import { currentRequestId } from '../observability';
 import type { Message } from './messages';
 
 type Recipient = { id: number; email: string };
@@ -29,6 +30,9 @@ export type Outgoing = {
 
 /** Many messages in two multi-row inserts (an outage over a thousand bookings). */
 export async function enqueueMany(tx: Database | Transaction, items: Outgoing[]) {
+	// The request this runs for (observability.ts sets it per request), so a message can be
+	// traced back to the request's log line.
+	const requestId = currentRequestId();
 	for (let i = 0; i < items.length; i += 500) {
 		const chunk = items.slice(i, i + 500);
 		await tx
@@ -44,7 +48,8 @@ export async function enqueueMany(tx: Database | Transaction, items: Outgoing[])
 					htmlBody: message.html,
 					icsMethod: message.icsMethod ?? null,
 					icsBody: message.ics ?? null,
-					dedupeKey
+					dedupeKey,
+					requestId
 				}))
 			);
 		const notices = chunk.filter((c) => c.inApp);

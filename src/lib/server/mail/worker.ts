@@ -9,6 +9,7 @@ import { config } from '../config';
 import { db } from '../db';
 import { transaction } from '../db/transaction';
 import { outbox } from '../db/schema';
+import { logger, outboxSends } from '../observability';
 
 export const MAX_ATTEMPTS = config.outboxMaxAttempts;
 /** A 'sending' row older than this belonged to a worker that died; it is retried. */
@@ -91,15 +92,29 @@ export async function drainOnce(limit = 40): Promise<{ sent: number; failed: num
 					.update(outbox)
 					.set({ status: 'sent', sentAt: new Date(), lastError: null })
 					.where(eq(outbox.id, row.id));
+				outboxSends.inc({ result: 'sent' });
 				return true;
 			} catch (e) {
 				const giveUp = row.attempts >= MAX_ATTEMPTS;
+				const reason = String((e as Error)?.message ?? e).slice(0, 1000);
+				outboxSends.inc({ result: giveUp ? 'gave_up' : 'failed' });
+				// The message's id, kind and the request that queued it; never its address or text.
+				logger[giveUp ? 'error' : 'warn'](
+					{
+						outboxId: row.id,
+						kind: row.kind,
+						attempts: row.attempts,
+						requestId: row.requestId,
+						reason
+					},
+					giveUp ? 'mail given up' : 'mail send failed, will retry'
+				);
 				await db
 					.update(outbox)
 					.set({
 						status: giveUp ? 'failed' : 'pending',
 						nextAttemptAt: new Date(Date.now() + backoffMs(row.attempts)),
-						lastError: String((e as Error)?.message ?? e).slice(0, 1000)
+						lastError: reason
 					})
 					.where(eq(outbox.id, row.id));
 				return false;
@@ -127,7 +142,7 @@ export function startWorker(intervalMs = config.outboxPollMs) {
 				// keep going while there is mail
 			}
 		} catch (e) {
-			console.error('[boxwright] outbox worker:', (e as Error).message);
+			logger.error({ err: e }, 'outbox worker round failed');
 		} finally {
 			running = false;
 		}

@@ -11,6 +11,7 @@ import { db, type Transaction } from '../db';
 import { lockBox } from '../db/locks';
 import { bookings, boxes, users, type Booking } from '../db/schema';
 import { transaction } from '../db/transaction';
+import { bookingDecisions } from '../observability';
 import type { Actor } from './accounts';
 import { audit } from './audit';
 import {
@@ -77,7 +78,10 @@ async function insertBooking(
 ) {
 	const { box, result } = await evaluate(tx, actor.id, input, now, gates);
 	const status = refusalStatus(result);
-	if (status) throw refusal(result.reasons, status);
+	if (status) {
+		bookingDecisions.inc({ outcome: 'refused', code: result.reasons[0]?.code ?? 'unknown' });
+		throw refusal(result.reasons, status);
+	}
 
 	const values = {
 		boxId: box.id,
@@ -131,7 +135,9 @@ async function insertBooking(
 export async function createBooking(actor: Actor, input: BookingInput, now = new Date()) {
 	const gates = await readGates(actor.id, input.boxId);
 	const groupId = await billedGroup(actor, input, gates);
-	return transaction((tx) => insertBooking(tx, actor, input, gates, groupId, now));
+	const made = await transaction((tx) => insertBooking(tx, actor, input, gates, groupId, now));
+	bookingDecisions.inc({ outcome: 'created', code: made.status });
+	return made;
 }
 
 /**
@@ -162,8 +168,10 @@ export async function createSeries(
 				insertBooking(tx, actor, one, gates, groupId, now, created[0]?.id ?? 'first')
 			)
 		);
-		if (made.ok) created.push(made.value);
-		else if (made.error.status === 409 || made.error.status === 422) {
+		if (made.ok) {
+			created.push(made.value);
+			bookingDecisions.inc({ outcome: 'created', code: made.value.status });
+		} else if (made.error.status === 409 || made.error.status === 422) {
 			const details = made.error.details as { reasons: SeriesRefusal['reasons'] };
 			refused.push({ ...when, reasons: details.reasons });
 		} else throw made.error;

@@ -1,0 +1,1 @@
+ALTER TABLE `outbox` ADD `request_id` varchar(36);
