@@ -36,7 +36,14 @@ function sessionIdFor(token: string): string {
 	return createHash('sha256').update(token).digest('hex');
 }
 
+/**
+ * Signs the browser in with a new session. The one its cookie held until now, whoever it
+ * belonged to, ends here: a new sign-in never leaves the old session usable (by someone
+ * who copied the cookie, or on a shared computer).
+ */
 export async function startSession(cookies: Cookies, userId: number): Promise<string> {
+	const previous = cookies.get(lucia.sessionCookieName);
+	if (previous && previous.length <= 100) await lucia.invalidateSession(sessionIdFor(previous));
 	const token = randomBytes(32).toString('base64url');
 	const session = await lucia.createSession(userId, {}, { sessionId: sessionIdFor(token) });
 	setCookie(cookies, token, session.expiresAt);

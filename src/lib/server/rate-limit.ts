@@ -1,11 +1,17 @@
-import { createHash } from 'node:crypto';
+// Throttles, with rate-limiter-flexible's MySQL store: counters live in MariaDB (table
+// rate_limits, created by the migrations), so every app process behind a load balancer
+// sees the same counts, and a `consume` is one atomic upsert there. Every guarded attempt
+// takes its point *before* the work it guards (the password check, the argon2 hash, the
+// mail), so a burst of parallel requests cannot all pass a check made before any of them
+// was counted; a sign-in that turns out right gives its points back.
+import { createHash, randomBytes } from 'node:crypto';
+import type { Cookies } from '@sveltejs/kit';
 import { RateLimiterMySQL, RateLimiterRes } from 'rate-limiter-flexible';
 import { building } from '$app/environment';
 import { config } from './config';
 import { pool } from './db';
+import { ServiceError } from './errors';
 
-// Counters live in MariaDB (table rate_limits, created by the migrations), so every app
-// process behind a load balancer sees the same counts.
 function limiter(keyPrefix: string, points: number, duration: number) {
 	if (building) return null as unknown as RateLimiterMySQL;
 	return new RateLimiterMySQL({
@@ -20,41 +26,174 @@ function limiter(keyPrefix: string, points: number, duration: number) {
 	});
 }
 
-const perAccount = limiter(
-	'signin_account',
-	config.signInLimitPerAccount,
-	config.signInWindowSeconds
-);
-const perAddress = limiter(
-	'signin_address',
-	config.signInLimitPerAddress,
-	config.signInWindowSeconds
-);
+const digest = (s: string) => createHash('sha256').update(s).digest('hex');
+/** An account's key: its e-mail as sign-in reads it, hashed (no e-mail in the table). */
+const accountKey = (email: string) => digest(email.trim().toLowerCase()).slice(0, 40);
 
-/** Seconds to wait before another sign-in attempt, or 0 when one is allowed now. */
-export async function signInRetryAfter(email: string, address: string): Promise<number> {
-	const [account, addr] = await Promise.all([
-		perAccount.get(`${email.toLowerCase()}|${address}`),
-		perAddress.get(address)
-	]);
-	const blocked = [account, addr].filter(
-		(r): r is RateLimiterRes =>
-			r !== null && r.consumedPoints >= (r === account ? perAccount : perAddress).points
-	);
-	if (!blocked.length) return 0;
-	return Math.ceil(Math.max(...blocked.map((r) => r.msBeforeNext)) / 1000);
+type Budget = { limiter: RateLimiterMySQL; key: string };
+
+/** A throttle's answer: go ahead (and how to give the points back), or how long to wait. */
+export type Taken =
+	{ ok: true; refund(): Promise<void> } | { ok: false; retryAfterSeconds: number };
+
+const giveBack = async (budgets: Budget[]) => {
+	await Promise.all(budgets.map((b) => b.limiter.reward(b.key)));
+};
+
+/**
+ * Takes one point from each budget, in order. The first that is spent refuses the attempt;
+ * points already taken for it are given back, since nothing was checked.
+ */
+async function take(budgets: Budget[]): Promise<Taken> {
+	const taken: Budget[] = [];
+	for (const budget of budgets) {
+		try {
+			await budget.limiter.consume(budget.key);
+			taken.push(budget);
+		} catch (e) {
+			await giveBack(taken);
+			if (!(e instanceof RateLimiterRes)) throw e;
+			return { ok: false, retryAfterSeconds: Math.max(1, Math.ceil(e.msBeforeNext / 1000)) };
+		}
+	}
+	return { ok: true, refund: () => giveBack(taken) };
 }
 
-export async function recordFailedSignIn(email: string, address: string) {
-	// consume() rejects once the points are used up; that is the throttle itself.
-	await Promise.allSettled([
-		perAccount.consume(`${email.toLowerCase()}|${address}`),
-		perAddress.consume(address)
+/** "3 minutes", for the messages that say how long to wait. */
+export function waitInWords(seconds: number): string {
+	const minutes = Math.max(1, Math.ceil(seconds / 60));
+	return `${minutes} minute${minutes === 1 ? '' : 's'}`;
+}
+
+/** The refusal of a spent budget: 429 `rate_limited`, the wait in `details`. */
+export function tooMany(message: string, retryAfterSeconds: number): ServiceError {
+	return new ServiceError(429, message, { retryAfterSeconds }, 'rate_limited');
+}
+
+/** Sets Retry-After when a form action's answer is a 429 from `tooMany`. */
+export function setRetryAfter(
+	setHeaders: (headers: Record<string, string>) => void,
+	answer: unknown
+): void {
+	const failure = answer as {
+		status?: number;
+		data?: { details?: { retryAfterSeconds?: unknown } };
+	} | null;
+	const wait = failure?.data?.details?.retryAfterSeconds;
+	if (failure?.status === 429 && typeof wait === 'number')
+		setHeaders({ 'retry-after': String(wait) });
+}
+
+// ---------------------------------------------------------------------------------------
+// Sign-in and the current-password check.
+//
+// Two budgets count wrong passwords, whatever the door (sign-in form, POST /api/session,
+// the account page's current password):
+// - per account: the e-mail, from every address together, so spreading guesses over many
+//   addresses gains nothing (SIGNIN_LIMIT_ACCOUNT);
+// - per address, whatever the account, so one address cannot try a few passwords on each
+//   of many accounts (SIGNIN_LIMIT_ADDRESS, larger).
+// Both are taken before the password is checked and given back when it is right, so they
+// only ever hold failures: people signing in correctly never use up an address's budget.
+//
+// Many people can share one address (a campus NAT, a proxy), and then someone failing on
+// purpose there could spend its budget for everyone; and anyone can spend one account's
+// budget to lock its owner out. So a browser that has signed in to an account before
+// carries a device cookie (OWASP's "device cookies" against lockout): for that account it
+// is judged by its own budget of failures alone, not by the address's or the account's.
+// Someone behind a busy address, or whose account is under attack, still signs in from a
+// browser they used before; a stranger holds no such cookie for the account, and a cookie
+// from one account counts for nothing on another.
+// ---------------------------------------------------------------------------------------
+
+const signInWindow = config.signInWindowSeconds;
+const signInPerAccount = limiter('signin_account', config.signInLimitPerAccount, signInWindow);
+const signInPerAddress = limiter('signin_address', config.signInLimitPerAddress, signInWindow);
+const signInPerDevice = limiter('signin_device', config.signInLimitPerAccount, signInWindow);
+
+const DEVICE_COOKIE = 'bw_device';
+const DEVICE_DAYS = 180;
+const knownDevices = limiter('signin_known', 1, DEVICE_DAYS * 86_400);
+const looksLikeDeviceToken = (t: string | undefined): t is string =>
+	!!t && /^[A-Za-z0-9_-]{43}$/.test(t);
+const deviceKey = (token: string, email: string) =>
+	digest(`${token}|${email.trim().toLowerCase()}`).slice(0, 40);
+
+/** The browser's device token, when it sent a well-formed one. */
+export function deviceToken(cookies: Cookies): string | null {
+	const token = cookies.get(DEVICE_COOKIE);
+	return looksLikeDeviceToken(token) ? token : null;
+}
+
+/** After a right password: this browser is known for this account from now on. */
+export async function rememberDevice(cookies: Cookies, email: string): Promise<void> {
+	const token = deviceToken(cookies) ?? randomBytes(32).toString('base64url');
+	await knownDevices.set(deviceKey(token, email), 1, DEVICE_DAYS * 86_400);
+	cookies.set(DEVICE_COOKIE, token, {
+		path: '/',
+		httpOnly: true,
+		sameSite: 'strict',
+		secure: config.secureCookies,
+		maxAge: DEVICE_DAYS * 86_400
+	});
+}
+
+/** Takes a sign-in attempt's points before its password is checked. */
+export async function takeSignIn(
+	email: string,
+	address: string,
+	device: string | null
+): Promise<Taken> {
+	if (device) {
+		const key = deviceKey(device, email);
+		if (await knownDevices.get(key)) return take([{ limiter: signInPerDevice, key }]);
+	}
+	return take([
+		{ limiter: signInPerAddress, key: address },
+		{ limiter: signInPerAccount, key: accountKey(email) }
 	]);
 }
 
-export async function clearFailedSignIns(email: string, address: string) {
-	await perAccount.delete(`${email.toLowerCase()}|${address}`);
+/** The account page's current-password check: the same budgets as a sign-in. */
+export function takePasswordCheck(email: string, address: string): Promise<Taken> {
+	return takeSignIn(email, address, null);
+}
+
+// ---------------------------------------------------------------------------------------
+// Registration and reset requests: every request counts, right or wrong, per address and
+// per e-mail (an unknown e-mail exactly like a known one, so a refusal says nothing about
+// which have accounts). A registration hashes its password only after this passed.
+// ---------------------------------------------------------------------------------------
+
+const registerPerAddress = limiter(
+	'register_address',
+	config.registerLimitPerAddress,
+	config.registerWindowSeconds
+);
+const registerPerEmail = limiter(
+	'register_email',
+	config.registerLimitPerEmail,
+	config.registerWindowSeconds
+);
+const resetPerAddress = limiter(
+	'reset_address',
+	config.resetLimitPerAddress,
+	config.resetWindowSeconds
+);
+const resetPerEmail = limiter('reset_email', config.resetLimitPerEmail, config.resetWindowSeconds);
+
+export function takeRegistration(email: string, address: string): Promise<Taken> {
+	return take([
+		{ limiter: registerPerAddress, key: address },
+		{ limiter: registerPerEmail, key: accountKey(email) }
+	]);
+}
+
+export function takeResetRequest(email: string, address: string): Promise<Taken> {
+	return take([
+		{ limiter: resetPerAddress, key: address },
+		{ limiter: resetPerEmail, key: accountKey(email) }
+	]);
 }
 
 // Feeds: calendar clients poll every few minutes; these limits only stop abuse.
@@ -63,7 +202,7 @@ const feedPerAddress = limiter('feed_address', config.feedLimitPerAddress, 60);
 
 /** Seconds to wait before the next feed request, or 0. The token is keyed by its hash. */
 export async function feedRetryAfter(token: string, address: string): Promise<number> {
-	const key = createHash('sha256').update(token).digest('hex').slice(0, 32);
+	const key = digest(token).slice(0, 32);
 	try {
 		await Promise.all([feedPerToken.consume(key), feedPerAddress.consume(address)]);
 		return 0;

@@ -11,6 +11,7 @@ import { listGroupNames, requestMembership } from '$lib/server/services/groups';
 import { feedTokenCreatedAt, feedUrls, newFeedToken } from '$lib/server/services/feeds';
 import { changePasswordSchema, emailPreferencesSchema, joinSchema } from '$lib/validation/account';
 import { runForm } from '$lib/server/forms';
+import { setRetryAfter } from '$lib/server/rate-limit';
 import type { Actions, PageServerLoad } from './$types';
 
 export const load: PageServerLoad = async (event) => {
@@ -72,16 +73,18 @@ export const actions: Actions = {
 	},
 	password: async (event) => {
 		const user = requireUser(event);
-		return runForm(
+		const answer = await runForm(
 			event.request,
 			changePasswordSchema,
 			async ({ currentPassword, newPassword }) => {
-				await changePassword(user.id, currentPassword, newPassword);
+				await changePassword(user.id, currentPassword, newPassword, event.getClientAddress());
 				// The session in hand stays; every other one (other browsers, a lost laptop) ends.
 				await endOtherSessions(user.id, event.locals.session!.id);
 				return { changed: true };
 			},
 			{ form: 'password' }
 		);
+		setRetryAfter(event.setHeaders, answer);
+		return answer;
 	}
 };

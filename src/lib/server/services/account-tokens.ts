@@ -17,6 +17,8 @@ import { transaction } from '../db/transaction';
 import { invitation, passwordReset } from '../mail/messages';
 import { enqueue } from '../mail/outbox';
 import { hashPassword } from '../password';
+import { checkNewPassword } from '../password-policy';
+import { takeResetRequest, tooMany, waitInWords } from '../rate-limit';
 import type { Actor } from './accounts';
 import { audit } from './audit';
 import { forbidden, isDuplicateKey, notFound, ServiceError } from './errors';
@@ -79,9 +81,19 @@ async function sendReset(
 /**
  * "Forgot your password?": sends a link when the address belongs to an active account and
  * does nothing otherwise. The caller answers the same either way, so the form tells no one
- * which addresses have accounts.
+ * which addresses have accounts. Requests are counted per client address and per e-mail
+ * before the account is looked up, known or not alike (429 with the same words for both).
  */
-export async function requestPasswordReset(email: string, now = new Date()): Promise<void> {
+export async function requestPasswordReset(
+	email: string,
+	address: string,
+	now = new Date()
+): Promise<void> {
+	const throttle = await takeResetRequest(email, address);
+	if (!throttle.ok) {
+		const wait = throttle.retryAfterSeconds;
+		throw tooMany(`Too many reset requests. Try again in ${waitInWords(wait)}.`, wait);
+	}
 	await transaction(async (tx) => {
 		const [person] = await tx
 			.select({ id: users.id, name: users.name, email: users.email, status: users.status })
@@ -222,8 +234,18 @@ async function spend(
 	return row!;
 }
 
+/**
+ * The password rule against the person a link opens. A link that opens nothing is left to
+ * `spend`, which refuses it in its own words.
+ */
+async function checkLinkPassword(kind: TokenKind, token: string, password: string, now: Date) {
+	const link = await linkState(kind, token, now);
+	if (link.state === 'valid') await checkNewPassword(password, link);
+}
+
 /** Sets a new password from a reset link; every session of the person ends. */
 export async function resetPassword(token: string, password: string, now = new Date()) {
+	await checkLinkPassword('reset', token, password, now);
 	const passwordHash = await hashPassword(password);
 	await transaction(async (tx) => {
 		const row = await spend(tx, 'reset', token, passwordHash, now);
@@ -238,6 +260,7 @@ export async function resetPassword(token: string, password: string, now = new D
 
 /** Sets the first password from an invitation: the person becomes active. Returns their id. */
 export async function acceptInvitation(token: string, password: string, now = new Date()) {
+	await checkLinkPassword('invite', token, password, now);
 	const passwordHash = await hashPassword(password);
 	return transaction(async (tx) => {
 		const row = await spend(tx, 'invite', token, passwordHash, now);

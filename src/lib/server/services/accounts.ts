@@ -3,7 +3,14 @@ import { hasRole } from '$lib/domain/roles';
 import { db } from '../db';
 import { groupMemberships, researchGroups, users, type Role } from '../db/schema';
 import { hashPassword, verifyDecoy, verifyPassword } from '../password';
-import { clearFailedSignIns, recordFailedSignIn, signInRetryAfter } from '../rate-limit';
+import { checkNewPassword } from '../password-policy';
+import {
+	takePasswordCheck,
+	takeRegistration,
+	takeSignIn,
+	tooMany,
+	waitInWords
+} from '../rate-limit';
 import { audit } from './audit';
 import { forbidden, isDuplicateKey, notFound, ServiceError } from './errors';
 import { transaction } from '../db/transaction';
@@ -12,8 +19,14 @@ export type Actor = { id: number; role: Role };
 
 export type Registration = { name: string; email: string; password: string; groupId: number };
 
-/** Creates a pending account and its request to join a group, together or not at all. */
-export async function register(input: Registration): Promise<number> {
+/**
+ * Creates a pending account and its request to join a group, together or not at all.
+ * Throttled per address and per e-mail before anything else (the hash is the costly part).
+ */
+export async function register(input: Registration, address: string): Promise<number> {
+	const throttle = await takeRegistration(input.email, address);
+	if (!throttle.ok)
+		throw tooMany(registrationThrottled(throttle.retryAfterSeconds), throttle.retryAfterSeconds);
 	const [group] = await db
 		.select({ id: researchGroups.id })
 		.from(researchGroups)
@@ -23,6 +36,7 @@ export async function register(input: Registration): Promise<number> {
 			fields: { groupId: 'Choose one of the listed groups.' }
 		});
 
+	await checkNewPassword(input.password, input);
 	const passwordHash = await hashPassword(input.password);
 	try {
 		return await transaction(async (tx) => {
@@ -49,6 +63,9 @@ export async function register(input: Registration): Promise<number> {
 	}
 }
 
+const registrationThrottled = (seconds: number) =>
+	`Too many registration attempts. Try again in ${waitInWords(seconds)}.`;
+
 export type SignInResult =
 	| { kind: 'ok'; userId: number }
 	| { kind: 'invalid' }
@@ -60,15 +77,18 @@ export type SignInResult =
 /**
  * Checks a password. An unknown e-mail and a wrong password get the same answer and take
  * the same time; only with the right password does a pending, invited or deactivated
- * account say so. Only an active account signs in.
+ * account say so. Only an active account signs in. The attempt is counted before the
+ * password is checked and given back when it was right (server/rate-limit.ts); `device`
+ * is the browser's device cookie, if any.
  */
 export async function checkSignIn(
 	email: string,
 	password: string,
-	address: string
+	address: string,
+	device: string | null = null
 ): Promise<SignInResult> {
-	const retryAfterSeconds = await signInRetryAfter(email, address);
-	if (retryAfterSeconds > 0) return { kind: 'throttled', retryAfterSeconds };
+	const throttle = await takeSignIn(email, address, device);
+	if (!throttle.ok) return { kind: 'throttled', retryAfterSeconds: throttle.retryAfterSeconds };
 
 	const [user] = await db
 		.select({ id: users.id, passwordHash: users.passwordHash, status: users.status })
@@ -77,11 +97,9 @@ export async function checkSignIn(
 	const valid = user
 		? await verifyPassword(user.passwordHash, password)
 		: await verifyDecoy(password);
-	if (!user || !valid) {
-		await recordFailedSignIn(email, address);
-		return { kind: 'invalid' };
-	}
-	await clearFailedSignIns(email, address);
+	// A wrong password keeps its point; a right one gives it back.
+	if (!user || !valid) return { kind: 'invalid' };
+	await throttle.refund();
 	if (user.status !== 'active') return { kind: user.status };
 	return { kind: 'ok', userId: user.id };
 }
@@ -93,8 +111,7 @@ export const signInMessages = {
 	invited:
 		'This account is not set up yet: choose your password from the invitation e-mail, or ask an admin to send it again.',
 	suspended: 'This account has been deactivated. Ask a site administrator if you need it again.',
-	throttled: (seconds: number) =>
-		`Too many failed sign-ins. Try again in ${Math.ceil(seconds / 60)} minute${seconds > 60 ? 's' : ''}.`
+	throttled: (seconds: number) => `Too many failed sign-ins. Try again in ${waitInWords(seconds)}.`
 };
 
 /** The groups a user leads as PI. */
@@ -258,16 +275,32 @@ export async function declineAccount(actor: Actor, userId: number) {
 	});
 }
 
-export async function changePassword(userId: number, current: string, next: string) {
+/**
+ * The current password is checked like a sign-in, against the same budgets (the same secret
+ * is being guessed); the new one is hashed only after that passed.
+ */
+export async function changePassword(
+	userId: number,
+	current: string,
+	next: string,
+	address: string
+) {
 	const [user] = await db
-		.select({ passwordHash: users.passwordHash })
+		.select({ email: users.email, name: users.name, passwordHash: users.passwordHash })
 		.from(users)
 		.where(eq(users.id, userId));
 	if (!user) throw notFound('The user');
+	const throttle = await takePasswordCheck(user.email, address);
+	if (!throttle.ok) {
+		const wait = throttle.retryAfterSeconds;
+		throw tooMany(`Too many wrong passwords. Try again in ${waitInWords(wait)}.`, wait);
+	}
 	if (!(await verifyPassword(user.passwordHash, current))) {
 		const message = 'That is not your current password.';
 		throw new ServiceError(400, message, { fields: { currentPassword: message } });
 	}
+	await throttle.refund();
+	await checkNewPassword(next, user, 'newPassword');
 	const passwordHash = await hashPassword(next);
 	await transaction(async (tx) => {
 		await tx.update(users).set({ passwordHash }).where(eq(users.id, userId));

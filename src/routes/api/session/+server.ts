@@ -2,12 +2,13 @@ import { json } from '@sveltejs/kit';
 import { endSession, startSession } from '$lib/server/auth';
 import { fail, readJson } from '$lib/server/http';
 import { checkSignIn, profile, signInMessages } from '$lib/server/services/accounts';
+import { deviceToken, rememberDevice } from '$lib/server/rate-limit';
 import { signInSchema } from '$lib/validation/account';
 import type { RequestHandler } from './$types';
 
 export const POST: RequestHandler = async ({ request, cookies, getClientAddress, setHeaders }) => {
 	const { email, password } = await readJson(request, signInSchema);
-	const result = await checkSignIn(email, password, getClientAddress());
+	const result = await checkSignIn(email, password, getClientAddress(), deviceToken(cookies));
 	if (result.kind === 'throttled') {
 		setHeaders({ 'retry-after': String(result.retryAfterSeconds) });
 		fail(429, signInMessages.throttled(result.retryAfterSeconds), {
@@ -17,7 +18,9 @@ export const POST: RequestHandler = async ({ request, cookies, getClientAddress,
 	if (result.kind === 'invalid')
 		fail(401, signInMessages.invalid, undefined, 'invalid_credentials');
 	if (result.kind !== 'ok') fail(403, signInMessages[result.kind]);
+	// The session this client held before ends with the new one (auth.ts).
 	await startSession(cookies, result.userId);
+	await rememberDevice(cookies, email);
 	return json({ user: await profile(result.userId) });
 };
 
