@@ -36,19 +36,72 @@ function concat(...parts: (Uint8Array | string)[]): Uint8Array<ArrayBuffer> {
 	);
 }
 
-describe('sniffPdf (header in the first 1024 bytes, %%EOF in the last 1024: PDF Reference 1.7, appendix H)', () => {
+/** A PDF whose last cross-reference section is a stream (ISO 32000-1, §7.5.8), as PDF 1.5+ writers make. */
+function xrefStreamPdf(): Uint8Array<ArrayBuffer> {
+	let body = '%PDF-1.5\n%\xe2\xe3\xcf\xd3\n';
+	const catalog = body.length;
+	body += '1 0 obj\n<< /Type /Catalog /Pages 2 0 R >>\nendobj\n';
+	const pages = body.length;
+	body += '2 0 obj\n<< /Type /Pages /Kids [] /Count 0 >>\nendobj\n';
+	const xref = body.length;
+	const row = (type: number, offset: number) =>
+		String.fromCharCode(type, (offset >> 8) & 0xff, offset & 0xff, 0);
+	const rows = row(0, 0) + row(1, catalog) + row(1, pages) + row(1, xref);
+	body += `3 0 obj\n<< /Type /XRef /Size 4 /W [1 2 1] /Root 1 0 R /Length ${rows.length} >>\nstream\n`;
+	body += `${rows}\nendstream\nendobj\nstartxref\n${xref}\n%%EOF\n`;
+	return new Uint8Array(Buffer.from(body, 'latin1'));
+}
+
+describe('sniffPdf: by structure (ISO 32000-1 §7.5; the 1024-byte windows of PDF Reference 1.7, appendix H)', () => {
 	it('accepts a real minimal PDF', () => {
 		expect(sniffPdf(pdf)).toEqual({ ext: 'pdf', type: 'application/pdf' });
 		expect(sniffImage(pdf)).toBeNull();
+	});
+
+	it('accepts a cross-reference stream instead of a table (§7.5.8)', () => {
+		expect(sniffPdf(xrefStreamPdf())).not.toBeNull();
+	});
+
+	it('accepts an incremental update appended to a PDF (§7.5.6): the last startxref counts', () => {
+		const base = Buffer.from(pdf).toString('latin1');
+		const at = base.length + '4 0 obj\n(note)\nendobj\n'.length;
+		const update = `4 0 obj\n(note)\nendobj\nxref\n4 1\n${String(base.length).padStart(10, '0')} 00000 n \ntrailer\n<< /Size 5 /Root 1 0 R /Prev ${base.indexOf('xref')} >>\nstartxref\n${at}\n%%EOF\n`;
+		expect(sniffPdf(concat(pdf, update))).not.toBeNull();
 	});
 
 	it('accepts a header after some leading bytes, and trailing bytes after %%EOF', () => {
 		expect(sniffPdf(concat(' '.repeat(1000), pdf, '\n'.repeat(1000)))).not.toBeNull();
 	});
 
+	it('accepts a PDF whose startxref offset is wrong but whose table is well formed (readers rebuild it)', () => {
+		const text = Buffer.from(pdf)
+			.toString('latin1')
+			.replace(/startxref\n\d+/, 'startxref\n7');
+		expect(sniffPdf(Buffer.from(text, 'latin1'))).not.toBeNull();
+	});
+
 	it('refuses a header past the first 1024 bytes or a %%EOF before the last 1024', () => {
 		expect(sniffPdf(concat(' '.repeat(1024), pdf))).toBeNull();
 		expect(sniffPdf(concat(pdf, ' '.repeat(1024)))).toBeNull();
+	});
+
+	it('refuses an HTML page with %PDF- in a comment, even with the end markers', () => {
+		const page = (tail: string) =>
+			concat('<!doctype html>\n<!-- %PDF-1.4 -->\n<html><body><script>alert(1)</script>\n', tail);
+		expect(sniffPdf(page('<!-- %%EOF -->\n'))).toBeNull();
+		expect(sniffPdf(page('<!--\nstartxref\n0\n%%EOF\n-->'))).toBeNull();
+		// Markup before a header is refused even when a real PDF follows it.
+		expect(sniffPdf(concat('<html><!-- ', pdf))).toBeNull();
+	});
+
+	it('refuses a header without its version, and a file with no file trailer or no cross-reference', () => {
+		const text = Buffer.from(pdf).toString('latin1');
+		const edit = (from: string | RegExp, to: string) =>
+			Buffer.from(text.replace(from, to), 'latin1');
+		expect(sniffPdf(edit('%PDF-1.4', '%PDF-'))).toBeNull();
+		expect(sniffPdf(edit(/startxref\n\d+\n/, ''))).toBeNull();
+		expect(sniffPdf(concat('%PDF-1.4\nplain text, no objects\nstartxref\n0\n%%EOF\n'))).toBeNull();
+		expect(sniffPdf(edit(/xref\n0 4\n(.|\n)*?trailer/, 'trailer'))).toBeNull();
 	});
 
 	it('refuses a PNG, an empty file and a truncated PDF', () => {
@@ -58,9 +111,12 @@ describe('sniffPdf (header in the first 1024 bytes, %%EOF in the last 1024: PDF 
 	});
 
 	it('reads a view into a larger buffer by its own bounds', () => {
-		const buffer = concat('%PDF-', new Uint8Array(2048), '%%EOF');
-		expect(sniffPdf(buffer.subarray(0, 2048))).toBeNull();
-		expect(sniffPdf(buffer.subarray(5))).toBeNull();
+		const after = concat(pdf, new Uint8Array(2048));
+		expect(sniffPdf(after)).toBeNull();
+		expect(sniffPdf(after.subarray(0, pdf.length))).not.toBeNull();
+		const before = concat(new Uint8Array(2048), pdf);
+		expect(sniffPdf(before)).toBeNull();
+		expect(sniffPdf(before.subarray(2048))).not.toBeNull();
 	});
 });
 
@@ -72,6 +128,12 @@ describe('checkDocument', () => {
 
 	it('refuses a PNG renamed .pdf, whatever type the browser claims', async () => {
 		const file = new File([png], 'photo.pdf', { type: 'application/pdf' });
+		expect(await checkDocument(file)).toEqual({ ok: false, message: 'That file is not a PDF.' });
+	});
+
+	it('refuses an HTML page named .pdf that carries %PDF- in a comment', async () => {
+		const html = '<!doctype html><!-- %PDF-1.7 --><p>Not a PDF</p><!-- %%EOF -->';
+		const file = new File([html], 'sop.pdf', { type: 'application/pdf' });
 		expect(await checkDocument(file)).toEqual({ ok: false, message: 'That file is not a PDF.' });
 	});
 

@@ -45,16 +45,75 @@ export function sniffImage(bytes: Uint8Array): FileType | null {
 	return null;
 }
 
+// PDF white-space characters (ISO 32000-1, §7.2.2, table 1).
+const WS = '[\\0\\t\\n\\f\\r ]';
+const headerLine = /%PDF-[12]\.\d/;
+const markup = /<[!?/a-z]/i;
+const fileTrailer = new RegExp(`startxref${WS}+(\\d{1,12})${WS}+%%EOF`, 'g');
+const xrefTable = new RegExp(`^${WS}*xref${WS}+\\d+${WS}+\\d+${WS}`);
+const xrefStream = new RegExp(`^${WS}*\\d+${WS}+\\d+${WS}+obj${WS}*<<([^]*?)stream`);
+const xrefStreamType = new RegExp(`/Type${WS}*/XRef(?![A-Za-z])`);
+// A cross-reference section anywhere: a table (the keyword on its own line, a subsection
+// header and a first 20-byte entry) or a cross-reference stream's dictionary.
+const anyXrefTable = new RegExp(
+	`(?:^|[\\r\\n])xref${WS}*[\\r\\n]+\\d+ \\d+${WS}*[\\r\\n]+\\d{10} \\d{5} [fn]`
+);
+
 /**
- * `{ ext: 'pdf' }` if the bytes look like a whole PDF, else null: the `%PDF-` header within the
- * first 1024 bytes and the `%%EOF` marker within the last 1024, the windows Adobe's readers
- * accept (PDF Reference 1.7, appendix H). A missing `%%EOF` means a truncated upload.
+ * Whether a cross-reference section starts at `at` (before `before`, the final `startxref`):
+ * an `xref` table followed by its `trailer`, or a stream object of `/Type /XRef`.
+ */
+function crossReferenceAt(buffer: Buffer, at: number, before: number): boolean {
+	if (!Number.isSafeInteger(at) || at < 0 || at >= before) return false;
+	const text = buffer.subarray(at, Math.min(at + 4096, before)).toString('latin1');
+	if (xrefTable.test(text)) {
+		const trailer = buffer.indexOf('trailer', at);
+		return trailer !== -1 && trailer < before;
+	}
+	const stream = xrefStream.exec(text);
+	return stream !== null && xrefStreamType.test(stream[1]);
+}
+
+/**
+ * `{ ext: 'pdf' }` if the bytes are built like a whole PDF, else null. Checked by structure,
+ * after ISO 32000-1:2008 (PDF 1.7), §7.5 "File structure":
+ * - §7.5.2 the header `%PDF-1.n` (or `%PDF-2.0`, ISO 32000-2), found within the first
+ *   1024 bytes as readers accept (PDF Reference 1.7, appendix H); nothing that
+ *   looks like markup may come before it, so an HTML page with `%PDF-` in a comment is not
+ *   a PDF;
+ * - §7.5.5 the file trailer: `startxref`, the byte offset of the last cross-reference
+ *   section and `%%EOF` at the end, the `%%EOF` within the last 1024 bytes (appendix H);
+ *   a missing `%%EOF` means a truncated upload;
+ * - §7.5.4 / §7.5.8 a cross-reference section: an `xref` table with its `trailer`, or a
+ *   cross-reference stream (`/Type /XRef`, PDF 1.5), at that offset (counted from the file's
+ *   start or, as readers do for leading bytes, from the header). Readers rebuild a wrong
+ *   offset, so a file whose offset misses still passes when a well-formed section exists.
  */
 export function sniffPdf(bytes: Uint8Array): { ext: 'pdf'; type: 'application/pdf' } | null {
 	const buffer = Buffer.from(bytes.buffer, bytes.byteOffset, bytes.byteLength);
-	if (!buffer.subarray(0, 1024).includes('%PDF-')) return null;
-	if (!buffer.subarray(-1024).includes('%%EOF')) return null;
-	return { ext: 'pdf', type: 'application/pdf' };
+	const head = buffer.subarray(0, 1024).toString('latin1');
+	const header = headerLine.exec(head);
+	if (!header || markup.test(head.slice(0, header.index))) return null;
+	const eof = buffer.lastIndexOf('%%EOF');
+	if (eof === -1 || eof < buffer.length - 1024 || eof < header.index) return null;
+	// The last `startxref N %%EOF` of the file (an incremental update appends another).
+	const tailFrom = Math.max(header.index, buffer.length - 2048);
+	const tail = buffer.subarray(tailFrom).toString('latin1');
+	const trailers = [...tail.matchAll(fileTrailer)];
+	const last = trailers.at(-1);
+	if (!last) return null;
+	const offset = Number(last[1]);
+	const before = tailFrom + last.index;
+	const found =
+		crossReferenceAt(buffer, offset, before) ||
+		crossReferenceAt(buffer, header.index + offset, before) ||
+		anyCrossReference(buffer.subarray(header.index, before));
+	return found ? { ext: 'pdf', type: 'application/pdf' } : null;
+}
+
+function anyCrossReference(body: Buffer): boolean {
+	const text = body.toString('latin1');
+	return anyXrefTable.test(text) || xrefStreamType.test(text);
 }
 
 export type PhotoCheck =

@@ -170,8 +170,9 @@ export async function grantCertification(actor: Actor, input: GrantInput, now = 
 		.from(trainingModules)
 		.where(eq(trainingModules.id, input.moduleId));
 	if (!module) throw notFound('The training module');
+	// Nobody, manager or trainer, records their own training: it would undo a revocation.
 	if (input.userId === actor.id)
-		throw forbidden('Nobody can certify themself: ask another trainer or a manager.');
+		throw forbidden('Another trainer or a manager must record your training.');
 	if (!(await mayCertify(actor, module.id))) {
 		throw forbidden(`Only a trainer who teaches “${module.name}” or a manager can certify it.`);
 	}
