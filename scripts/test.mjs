@@ -56,8 +56,18 @@ const env = {
 	OUTBOX_BACKOFF_MS: '200',
 	OUTBOX_POLL_MS: '200',
 	SCHEDULER_POLL_MS: '300',
+	// Readiness: a scheduler round may take longer than 5 × 300 ms on a busy test machine.
+	READY_SCHEDULER_LATE_MS: '30000',
+	// Request lines stay out of the test output; warnings and errors still show.
+	LOG_LEVEL: process.env.LOG_LEVEL ?? 'warn',
+	// The scraper's token (tests/integration/metrics.test.ts reads it from here too).
+	METRICS_TOKEN: 'test-metrics-token-0123456789',
+	// X-Statements on every answer (tests/integration/dashboard-queries.test.ts).
+	COUNT_STATEMENTS: '1',
 	DATABASE_URL: db.url,
+	// Above the largest upload (a 25 MB sensor log); body-limits.test.ts counts on the 64 kB default.
 	BODY_SIZE_LIMIT: process.env.BODY_SIZE_LIMIT ?? '26M',
+	BODY_LIMIT_DEFAULT: '64K',
 	PORT: port,
 	ORIGIN: baseUrl,
 	APP_URL: baseUrl,
