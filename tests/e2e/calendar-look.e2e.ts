@@ -117,6 +117,7 @@ test.describe('on a 390 px phone', () => {
 			expect(await pageWidth(page)).toBeLessThanOrEqual(390);
 
 			await row.click();
+			await page.waitForURL(`**/dev/mail/${file}`);
 			await expect(page.getByTestId('mail-subject')).toHaveText(subject);
 			await expect(page.getByText('member@example.org').first()).toBeVisible();
 			await expect(page.getByTestId('mail-text')).toContainText(purpose);

@@ -79,12 +79,12 @@ describe('the bucketed readings series', () => {
 		const plan = bucketPlan(new Date(from), new Date(to), facilityTz);
 		expect(plan.bucketSeconds).toBe(s.bucketSeconds);
 		const [rows] = (await testDb().execute(
-			sql`SELECT at, o2_ppm AS o2, h2o_ppm AS h2o FROM atmosphere_readings WHERE box_id = ${boxId} ORDER BY at`
-		)) as unknown as [{ at: Date; o2: string; h2o: string }[]];
+			sql`SELECT DATE_FORMAT(at, '%Y-%m-%dT%H:%i:%sZ') AS at, o2_ppm AS o2, h2o_ppm AS h2o FROM atmosphere_readings WHERE box_id = ${boxId} ORDER BY at`
+		)) as unknown as [{ at: string; o2: string; h2o: string }[]];
 		expect(rows.length).toBe(ROWS);
 		const plain = new Map<number, { o2: number[]; h2o: number[] }>();
 		for (const r of rows) {
-			const slot = bucketOf(r.at.getTime() / 1000, plan);
+			const slot = bucketOf(Date.parse(r.at) / 1000, plan);
 			const b = plain.get(slot) ?? { o2: [Infinity, -Infinity], h2o: [Infinity, -Infinity] };
 			const o2 = Number(r.o2);
 			const h2o = Number(r.h2o);
