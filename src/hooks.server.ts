@@ -3,6 +3,7 @@ import { sequence } from '@sveltejs/kit/hooks';
 import { building } from '$app/environment';
 import { readSession } from '$lib/server/auth';
 import { config } from '$lib/server/config';
+import { countStatements } from '$lib/server/count-statements';
 import { pool } from '$lib/server/db';
 import { shapeApiError } from '$lib/server/http';
 import { httpGuards } from '$lib/server/http-guards';
@@ -31,7 +32,15 @@ const apiErrors: Handle = async ({ event, resolve }) => {
 	return shapeApiError(await resolve(event));
 };
 
-export const handle = sequence(observe, httpGuards, csrf, defaultAction, apiErrors, session);
+export const handle = sequence(
+	observe,
+	countStatements,
+	httpGuards,
+	csrf,
+	defaultAction,
+	apiErrors,
+	session
+);
 
 export const handleError: HandleServerError = ({ error, event, status, message }) => {
 	if (status === 404) return { message: 'Not found.', code: 'not_found' };

@@ -1,5 +1,5 @@
 import { DrizzleMySQLAdapter } from '@lucia-auth/adapter-drizzle';
-import { Lucia, TimeSpan } from 'lucia';
+import { Lucia, TimeSpan, type DatabaseSession, type DatabaseUser } from 'lucia';
 import { createHash, randomBytes } from 'node:crypto';
 import type { Cookies } from '@sveltejs/kit';
 import { and, eq, ne } from 'drizzle-orm';
@@ -7,7 +7,38 @@ import { config } from './config';
 import { db } from './db';
 import { sessions, users, type Role, type UserStatus } from './db/schema';
 
-const adapter = new DrizzleMySQLAdapter(db, sessions, users);
+/**
+ * Lucia's Drizzle adapter, except that the session check on every request reads only the
+ * user's columns Lucia passes on (getUserAttributes), not the password hash or the feed
+ * token's: the same one statement, a narrower row.
+ */
+class SessionAdapter extends DrizzleMySQLAdapter {
+	override async getSessionAndUser(
+		sessionId: string
+	): Promise<[DatabaseSession | null, DatabaseUser | null]> {
+		const rows = await db
+			.select({
+				id: sessions.id,
+				userId: sessions.userId,
+				expiresAt: sessions.expiresAt,
+				email: users.email,
+				name: users.name,
+				role: users.role,
+				status: users.status
+			})
+			.from(sessions)
+			.innerJoin(users, eq(users.id, sessions.userId))
+			.where(eq(sessions.id, sessionId));
+		if (rows.length !== 1) return [null, null];
+		const { id, userId, expiresAt, ...attributes } = rows[0];
+		return [
+			{ id, userId, expiresAt, attributes: {} },
+			{ id: userId, attributes }
+		];
+	}
+}
+
+const adapter = new SessionAdapter(db, sessions, users);
 
 export const lucia = new Lucia(adapter, {
 	sessionExpiresIn: new TimeSpan(30, 'd'),

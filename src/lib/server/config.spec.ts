@@ -162,4 +162,13 @@ describe('parseSettings', () => {
 			/^METRICS_TOKEN: at least 16 characters without spaces$/
 		);
 	});
+
+	it('counts statements per request only when a test asks (COUNT_STATEMENTS)', () => {
+		expect(parseSettings({}).countStatements).toBe(false);
+		expect(parseSettings({ COUNT_STATEMENTS: '1' }).countStatements).toBe(true);
+		expect(parseSettings({ COUNT_STATEMENTS: 'no' }).countStatements).toBe(false);
+		expect(() => parseSettings({ COUNT_STATEMENTS: 'maybe' })).toThrow(
+			'COUNT_STATEMENTS: true or false'
+		);
+	});
 });

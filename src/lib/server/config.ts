@@ -159,7 +159,8 @@ const variables = storageVariables.extend({
 		.optional(),
 	READY_OUTBOX_AGE_SECONDS: whole(1).default(600),
 	READY_DB_MS: whole(1).default(1000),
-	READY_SCHEDULER_LATE_MS: millis().optional()
+	READY_SCHEDULER_LATE_MS: millis().optional(),
+	COUNT_STATEMENTS: yesNo().default(false)
 });
 
 /** An empty or blank variable (`X=` in a .env file) counts as unset. */
@@ -271,6 +272,11 @@ export function parseSettings(env: Env) {
 			/** Since the scheduler last finished a round (when it runs here), in ms. */
 			schedulerLateMs: e.READY_SCHEDULER_LATE_MS ?? 5 * e.SCHEDULER_POLL_MS
 		},
+		/**
+		 * Tests only: every answer carries `X-Statements`, the SQL statements its request sent
+		 * (server/count-statements.ts); off, nothing is counted.
+		 */
+		countStatements: e.COUNT_STATEMENTS,
 		storage: storageSettings(env)
 	};
 }

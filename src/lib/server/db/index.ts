@@ -1,9 +1,12 @@
 import { building } from '$app/environment';
 import { config } from '../config';
 import { connect, type Database } from './connect';
+import { countStatementsOn } from './statement-count';
 
 // The build imports server modules to analyse them; it has no database.
 const connection = building ? null : connect(config.databaseUrl(), config.dbPoolSize);
+// Tests only: each request's statements counted (server/count-statements.ts).
+if (connection && config.countStatements) countStatementsOn(connection.pool);
 
 export const db = connection?.db as Database;
 export const pool = connection?.pool as ReturnType<typeof connect>['pool'];

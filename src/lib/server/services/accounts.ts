@@ -114,12 +114,16 @@ export const signInMessages = {
 	throttled: (seconds: number) => `Too many failed sign-ins. Try again in ${waitInWords(seconds)}.`
 };
 
-/** The groups a user leads as PI. */
-export async function groupsLedBy(userId: number) {
-	return db
+/** The groups a user leads as PI, as a query (the shell reads it inside its one statement). */
+export const ledByQuery = (userId: number) =>
+	db
 		.select({ id: researchGroups.id, name: researchGroups.name })
 		.from(researchGroups)
 		.where(eq(researchGroups.piUserId, userId));
+
+/** The groups a user leads as PI. */
+export async function groupsLedBy(userId: number) {
+	return ledByQuery(userId);
 }
 
 /** The user's profile as /api/me and the shell show it. */
@@ -196,10 +200,13 @@ export async function pendingAccountsFor(actor: Actor): Promise<PendingAccount[]
 	return rows;
 }
 
-/** How many registrations wait for the actor: one COUNT, for the badge on every page. */
-export async function countPendingFor(actor: Actor): Promise<number> {
+/**
+ * How many registrations wait for the actor (every one for a manager, their groups' for a
+ * PI, none for anyone else): one COUNT, as a query the shell reads inside its one statement.
+ */
+export const pendingForQuery = (actor: Actor) => {
 	const pending = and(eq(users.status, 'pending'), eq(groupMemberships.status, 'pending'));
-	const [row] = await db
+	return db
 		.select({ n: count() })
 		.from(users)
 		.innerJoin(groupMemberships, eq(groupMemberships.userId, users.id))
@@ -207,6 +214,11 @@ export async function countPendingFor(actor: Actor): Promise<number> {
 		.where(
 			hasRole(actor.role, 'manager') ? pending : and(pending, eq(researchGroups.piUserId, actor.id))
 		);
+};
+
+/** How many registrations wait for the actor: one COUNT, for the badge on every page. */
+export async function countPendingFor(actor: Actor): Promise<number> {
+	const [row] = await pendingForQuery(actor);
 	return row?.n ?? 0;
 }
 

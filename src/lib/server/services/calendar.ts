@@ -310,11 +310,15 @@ export async function pendingBookings() {
 		.orderBy(asc(bookings.startAt));
 }
 
-/** How many bookings wait for a manager: the shell's badge, on every page, so a count. */
-export async function countPendingBookings(): Promise<number> {
-	const [row] = await db
+/** The bookings waiting for a manager as a COUNT query (read inside the shell's statement). */
+export const pendingBookingsQuery = () =>
+	db
 		.select({ n: sql<number>`count(*)` })
 		.from(bookings)
 		.where(eq(bookings.status, 'pending'));
+
+/** How many bookings wait for a manager: the shell's badge, on every page, so a count. */
+export async function countPendingBookings(): Promise<number> {
+	const [row] = await pendingBookingsQuery();
 	return Number(row?.n ?? 0);
 }

@@ -73,12 +73,15 @@ export async function check(
 	return { readingId: value.id, at: now, atmosphereState: state };
 }
 
-/** The one booking of this person that wants a check-in or check-out now, if any. */
-export async function pendingCheck(userId: number, now = new Date()) {
+/**
+ * This person's bookings that may want a check-in or check-out now, soonest first (at most
+ * five): what checkPrompt decides from. A query, so the shell can read it in its statement.
+ */
+export function checkCandidates(userId: number, now = new Date()) {
 	const soon = new Date(
 		now.getTime() + Math.max(CHECK_IN_OPENS_MIN, CHECK_OUT_PROMPT_MIN) * 60_000
 	);
-	const rows = await db
+	return db
 		.select({
 			id: bookings.id,
 			boxName: boxes.name,
@@ -110,11 +113,22 @@ export async function pendingCheck(userId: number, now = new Date()) {
 		)
 		.orderBy(asc(bookings.startAt))
 		.limit(5);
-	for (const b of rows) {
+}
+
+type Candidate = Awaited<ReturnType<typeof checkCandidates>>[number];
+
+/** The first of the candidates (soonest first) that wants a check-in or check-out now. */
+export function promptOf(candidates: Candidate[], now = new Date()) {
+	for (const b of candidates) {
 		const prompt = checkPrompt(b, now);
 		if (prompt) return { id: b.id, boxName: b.boxName, startAt: b.startAt, endAt: b.endAt, prompt };
 	}
 	return null;
+}
+
+/** The one booking of this person that wants a check-in or check-out now, if any. */
+export async function pendingCheck(userId: number, now = new Date()) {
+	return promptOf(await checkCandidates(userId, now), now);
 }
 
 /** A booking's check-in page: the booking, what refuses each check now, the box's last reading. */

@@ -7,11 +7,15 @@ import { enqueueMany } from '../mail/outbox';
 import { transaction } from '../db/transaction';
 import { matchesWords, orderOf, pageInSql } from '../listing';
 
-export async function unreadCount(userId: number): Promise<number> {
-	const [row] = await db
+/** A person's unread notices as a COUNT query (the shell reads it inside its one statement). */
+export const unreadQuery = (userId: number) =>
+	db
 		.select({ n: sql<number>`count(*)` })
 		.from(notifications)
 		.where(and(eq(notifications.userId, userId), isNull(notifications.readAt)));
+
+export async function unreadCount(userId: number): Promise<number> {
+	const [row] = await unreadQuery(userId);
 	return Number(row?.n ?? 0);
 }
 
