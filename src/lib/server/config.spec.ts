@@ -171,4 +171,16 @@ describe('parseSettings', () => {
 			'COUNT_STATEMENTS: true or false'
 		);
 	});
+
+	it('sends no wsrep_sync_wait unless a cluster asks (DB_SYNC_WAIT), and retries ten times', () => {
+		const none = parseSettings({});
+		expect([none.dbSyncWait, none.dbTxAttempts]).toEqual([null, 10]);
+		expect(parseSettings({ DB_SYNC_WAIT: '1' }).dbSyncWait).toBe(1);
+		expect(parseSettings({ DB_SYNC_WAIT: 'OFF' }).dbSyncWait).toBeNull();
+		expect(parseSettings({ DB_SYNC_WAIT: '0' }).dbSyncWait).toBeNull();
+		expect(parseSettings({ DB_TX_ATTEMPTS: '3' }).dbTxAttempts).toBe(3);
+		for (const bad of ['16', '-1', 'on', '1.5'])
+			expect(() => parseSettings({ DB_SYNC_WAIT: bad }), bad).toThrow(/^DB_SYNC_WAIT: off, or/);
+		expect(() => parseSettings({ DB_TX_ATTEMPTS: '0' })).toThrow(/^DB_TX_ATTEMPTS: /);
+	});
 });

@@ -92,6 +92,16 @@ const variables = storageVariables.extend({
 		true
 	).optional(),
 	DB_POOL_SIZE: whole(1, 1000).default(20),
+	DB_SYNC_WAIT: z
+		.string()
+		.trim()
+		.toLowerCase()
+		.refine((s) => s === 'off' || (/^\d+$/.test(s) && Number(s) <= 15), {
+			error: 'off, or a wsrep_sync_wait mask from 0 to 15 (1: reads wait for the cluster)'
+		})
+		.transform((s) => (s === 'off' || Number(s) === 0 ? null : Number(s)))
+		.default(null),
+	DB_TX_ATTEMPTS: whole(1, 100).default(10),
 
 	PORT: port().default(3000),
 	ORIGIN: url(['http:', 'https:'], 'https://boxes.example.org').optional(),
@@ -212,6 +222,17 @@ export function parseSettings(env: Env) {
 			return databaseUrl;
 		},
 		dbPoolSize: e.DB_POOL_SIZE,
+		/**
+		 * Galera only: `SET SESSION wsrep_sync_wait = n` on every new connection, so a read
+		 * sees what any node committed before it (set where app processes use different
+		 * nodes). Null (off, the default) sends nothing, as a single MariaDB needs.
+		 */
+		dbSyncWait: e.DB_SYNC_WAIT,
+		/**
+		 * Attempts of a write transaction that a deadlock, a certification conflict or a node
+		 * not ready refused (db/retry.ts), the first included.
+		 */
+		dbTxAttempts: e.DB_TX_ATTEMPTS,
 		port: e.PORT,
 		/** The public origin links in e-mails point at, without a trailing slash. */
 		origin,

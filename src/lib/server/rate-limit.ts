@@ -4,6 +4,11 @@
 // takes its point *before* the work it guards (the password check, the argon2 hash, the
 // mail), so a burst of parallel requests cannot all pass a check made before any of them
 // was counted; a sign-in that turns out right gives its points back.
+//
+// The store's calls are run again after a deadlock, a Galera certification conflict or a
+// node that is not ready (rate-limit-store.ts). When the store still cannot count, a
+// guarded attempt (sign-in, registration, reset requests) is refused with a 503 rather
+// than let through uncounted, and a feed request goes ahead (its limit only stops abuse).
 import { createHash, randomBytes } from 'node:crypto';
 import type { Cookies } from '@sveltejs/kit';
 import { RateLimiterMySQL, RateLimiterRes } from 'rate-limiter-flexible';
@@ -11,10 +16,12 @@ import { building } from '$app/environment';
 import { config } from './config';
 import { pool } from './db';
 import { ServiceError } from './errors';
+import { logger } from './observability';
+import { retryingStore } from './rate-limit-store';
 
 function limiter(keyPrefix: string, points: number, duration: number) {
 	if (building) return null as unknown as RateLimiterMySQL;
-	return new RateLimiterMySQL({
+	const store = new RateLimiterMySQL({
 		storeClient: pool.pool,
 		storeType: 'pool',
 		dbName: new URL(config.databaseUrl()).pathname.slice(1),
@@ -24,6 +31,7 @@ function limiter(keyPrefix: string, points: number, duration: number) {
 		points,
 		duration
 	});
+	return retryingStore(store);
 }
 
 const digest = (s: string) => createHash('sha256').update(s).digest('hex');
@@ -36,8 +44,26 @@ type Budget = { limiter: RateLimiterMySQL; key: string };
 export type Taken =
 	{ ok: true; refund(): Promise<void> } | { ok: false; retryAfterSeconds: number };
 
+/** The refusal when the store cannot count: nothing is checked uncounted. */
+function storeDown(e: unknown): ServiceError {
+	logger.warn({ err: e }, 'the rate limit store failed; the attempt is refused');
+	return new ServiceError(
+		503,
+		'This cannot be checked right now. Please try again in a moment.',
+		undefined,
+		'unavailable'
+	);
+}
+
+/**
+ * Gives the points back. A store that fails here leaves them counted (the safe side: a
+ * budget spent a little sooner), with a warning, rather than fail what was already decided.
+ */
 const giveBack = async (budgets: Budget[]) => {
-	await Promise.all(budgets.map((b) => b.limiter.reward(b.key)));
+	const results = await Promise.allSettled(budgets.map((b) => b.limiter.reward(b.key)));
+	for (const r of results)
+		if (r.status === 'rejected')
+			logger.warn({ err: r.reason }, 'the rate limit store failed to give points back');
 };
 
 /**
@@ -52,7 +78,7 @@ async function take(budgets: Budget[]): Promise<Taken> {
 			taken.push(budget);
 		} catch (e) {
 			await giveBack(taken);
-			if (!(e instanceof RateLimiterRes)) throw e;
+			if (!(e instanceof RateLimiterRes)) throw storeDown(e);
 			return { ok: false, retryAfterSeconds: Math.max(1, Math.ceil(e.msBeforeNext / 1000)) };
 		}
 	}
@@ -128,7 +154,13 @@ export function deviceToken(cookies: Cookies): string | null {
 /** After a right password: this browser is known for this account from now on. */
 export async function rememberDevice(cookies: Cookies, email: string): Promise<void> {
 	const token = deviceToken(cookies) ?? randomBytes(32).toString('base64url');
-	await knownDevices.set(deviceKey(token, email), 1, DEVICE_DAYS * 86_400);
+	try {
+		await knownDevices.set(deviceKey(token, email), 1, DEVICE_DAYS * 86_400);
+	} catch (e) {
+		// The person is signed in; the browser is only not remembered this time.
+		logger.warn({ err: e }, 'the rate limit store failed to remember a device');
+		return;
+	}
 	cookies.set(DEVICE_COOKIE, token, {
 		path: '/',
 		httpOnly: true,
@@ -146,7 +178,10 @@ export async function takeSignIn(
 ): Promise<Taken> {
 	if (device) {
 		const key = deviceKey(device, email);
-		if (await knownDevices.get(key)) return take([{ limiter: signInPerDevice, key }]);
+		const known = await knownDevices.get(key).catch((e: unknown) => {
+			throw storeDown(e);
+		});
+		if (known) return take([{ limiter: signInPerDevice, key }]);
 	}
 	return take([
 		{ limiter: signInPerAddress, key: address },
@@ -200,14 +235,23 @@ export function takeResetRequest(email: string, address: string): Promise<Taken>
 const feedPerToken = limiter('feed_token', config.feedLimitPerToken, 60);
 const feedPerAddress = limiter('feed_address', config.feedLimitPerAddress, 60);
 
-/** Seconds to wait before the next feed request, or 0. The token is keyed by its hash. */
+/**
+ * Seconds to wait before the next feed request, or 0. The token is keyed by its hash. A
+ * store that cannot count lets the request through (with a warning): a feed is read-only,
+ * and its limit only stops abuse.
+ */
 export async function feedRetryAfter(token: string, address: string): Promise<number> {
 	const key = digest(token).slice(0, 32);
-	try {
-		await Promise.all([feedPerToken.consume(key), feedPerAddress.consume(address)]);
-		return 0;
-	} catch (e) {
-		if (e instanceof RateLimiterRes) return Math.max(1, Math.ceil(e.msBeforeNext / 1000));
-		throw e;
+	const counts = await Promise.allSettled([
+		feedPerToken.consume(key),
+		feedPerAddress.consume(address)
+	]);
+	let wait = 0;
+	for (const c of counts) {
+		if (c.status === 'fulfilled') continue;
+		if (c.reason instanceof RateLimiterRes)
+			wait = Math.max(wait, 1, Math.ceil(c.reason.msBeforeNext / 1000));
+		else logger.warn({ err: c.reason }, 'the feed rate limit store failed; the request goes ahead');
 	}
+	return wait;
 }

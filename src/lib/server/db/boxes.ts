@@ -53,7 +53,9 @@ export const boxes = mysqlTable('boxes', {
 	noShowGraceMin: smallint().notNull().default(15),
 	createdAt: datetime({ mode: 'date' })
 		.notNull()
-		.default(sql`CURRENT_TIMESTAMP`)
+		.default(sql`CURRENT_TIMESTAMP`),
+	/** Raised by db/locks.ts lockBox: the box's lock as a write a Galera cluster certifies. */
+	lockVersion: int().notNull().default(0)
 });
 
 export const boxPorts = mysqlTable(

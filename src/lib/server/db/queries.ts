@@ -113,11 +113,16 @@ export type BookingRequestRead = {
  * in hand, so checkBooking decides what collides. Each booking branch is a range scan on
  * (box_id, start_at) with a lower bound, so the box's history is never read whole. Null
  * when there is no such box.
+ *
+ * The lock is lockBox's (db/locks.ts): a write to the box row, which a Galera cluster
+ * certifies, so two nodes cannot both book one slot; it opens the batch, and so the
+ * transaction, and the reads after it see everything committed before it was granted.
  */
 export async function lockBoxForBooking(tx: Transaction, q: BookingRequestRead) {
 	const ignore = q.ignoreBookingId ?? 0;
 	const purgeBound = new Date(q.end.getTime() + LONGEST_PURGE_MS);
-	const [[lockedRows, rows]] = (await tx.execute(sql`
+	const [[, lockedRows, rows]] = (await tx.execute(sql`
+		UPDATE boxes SET lock_version = lock_version + 1 WHERE id = ${q.boxId};
 		SELECT ${sql.raw(BOX_RULE_COLUMNS)} FROM boxes WHERE id = ${q.boxId} FOR UPDATE;
 		SELECT 'other' AS src, id, start_at, end_at, blocked_until, status FROM bookings
 		WHERE box_id = ${q.boxId} AND ${inArray(bookings.status, openStatuses)} AND id <> ${ignore}
@@ -130,7 +135,7 @@ export async function lockBoxForBooking(tx: Transaction, q: BookingRequestRead) 
 		UNION ALL
 		SELECT 'outage', id, start_at, end_at, end_at, reason FROM outages
 		WHERE box_id = ${q.boxId} AND start_at < ${purgeBound} AND end_at > ${q.start}
-	`)) as unknown as [[RawBox[], NearRow[]]];
+	`)) as unknown as [[unknown, RawBox[], NearRow[]]];
 	if (!lockedRows.length) return null;
 	const span = (r: NearRow): Span => ({ startAt: utc(r.start_at), endAt: utc(r.end_at) });
 	const near = (src: NearRow['src']) => rows.filter((r) => r.src === src);

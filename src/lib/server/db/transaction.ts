@@ -1,30 +1,19 @@
 // Every write transaction goes through here. InnoDB may pick any transaction as a deadlock
 // victim (the outbox worker's claims meet the inserts of whoever queues mail, bookings meet
-// outages on a box's row), and a Galera cluster reports certification conflicts the same
-// way: such a transaction is simply run again, a few times, with a short random pause.
-import { db, type Transaction } from './index';
+// outages on a box's row), and on a Galera cluster two nodes' transactions that touched one
+// row meet at certification, where one of them is refused; a node that is joining or cut
+// off refuses everything for a while. Such a transaction is run again on a fresh connection
+// after a short random pause, up to DB_TX_ATTEMPTS times (retry.ts says exactly when).
+import { config } from '../config';
+import { pool, type Transaction } from './index';
+import { runTransaction } from './retry';
 
-const RETRYABLE_CODES = new Set(['ER_LOCK_DEADLOCK', 'ER_LOCK_WAIT_TIMEOUT']);
+export { isRetryable } from './retry';
 
-export function isRetryable(e: unknown): boolean {
-	const err = e as { code?: string; errno?: number; cause?: { code?: string; errno?: number } };
-	const code = err?.code ?? err?.cause?.code;
-	const errno = err?.errno ?? err?.cause?.errno;
-	// 1213: deadlock (and Galera's certification conflict); 1205: lock wait timeout.
-	return (code !== undefined && RETRYABLE_CODES.has(code)) || errno === 1213 || errno === 1205;
-}
-
-/** Runs `work` in a transaction, again when MariaDB chose it as a deadlock victim. */
+/** Runs `work` in a transaction; again when it was refused without writing anything. */
 export async function transaction<T>(
 	work: (tx: Transaction) => Promise<T>,
-	attempts = 4
+	attempts = config.dbTxAttempts
 ): Promise<T> {
-	for (let i = 1; ; i++) {
-		try {
-			return await db.transaction(work);
-		} catch (e) {
-			if (i >= attempts || !isRetryable(e)) throw e;
-			await new Promise((done) => setTimeout(done, 10 * 2 ** i + Math.random() * 20));
-		}
-	}
+	return runTransaction(pool, work, { attempts });
 }

@@ -36,7 +36,9 @@ export const users = mysqlTable('users', {
 	feedTokenHash: varchar({ length: 64 }).unique(),
 	feedTokenCreatedAt: datetime({ mode: 'date' }),
 	/** E-mail when a booking is made or approved; cancellations are always sent. */
-	emailConfirmations: boolean().notNull().default(true)
+	emailConfirmations: boolean().notNull().default(true),
+	/** Raised by db/locks.ts lockUser: the person's lock as a write a Galera cluster certifies. */
+	lockVersion: int().notNull().default(0)
 });
 
 /** Lucia sessions. `id` is the SHA-256 of the cookie's token, so a leaked table opens nothing. */

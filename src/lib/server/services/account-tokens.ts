@@ -5,6 +5,7 @@ import { createHash, randomBytes } from 'node:crypto';
 import { and, count, eq, gt, isNull } from 'drizzle-orm';
 import { config } from '../config';
 import { db, type Transaction } from '../db';
+import { lockUser } from '../db/locks';
 import {
 	accountTokens,
 	groupMemberships,
@@ -95,6 +96,8 @@ export async function requestPasswordReset(
 		throw tooMany(`Too many reset requests. Try again in ${waitInWords(wait)}.`, wait);
 	}
 	await transaction(async (tx) => {
+		// A certified lock (db/locks.ts): a request on another node counts this one's link.
+		if (!(await lockUser(tx, { email }))) return;
 		const [person] = await tx
 			.select({ id: users.id, name: users.name, email: users.email, status: users.status })
 			.from(users)
@@ -122,6 +125,7 @@ export async function requestPasswordReset(
 export async function sendResetLink(actor: Actor, userId: number, now = new Date()) {
 	if (actor.role !== 'admin') throw forbidden('Only an admin can send reset links.');
 	await transaction(async (tx) => {
+		if (!(await lockUser(tx, userId))) throw notFound('The person');
 		const [person] = await tx
 			.select({ id: users.id, name: users.name, email: users.email, status: users.status })
 			.from(users)
@@ -199,7 +203,8 @@ async function spend(
 		.from(accountTokens)
 		.where(byHash);
 	if (!found) throw refused('unknown');
-	// The person's row first, then their links: the order deactivation takes them in.
+	// The person's row first, then their links: the order deactivation takes them in. Both
+	// are updated below, so on a cluster these locks certify as they are.
 	const [person] = await tx
 		.select({ status: users.status })
 		.from(users)
@@ -372,6 +377,7 @@ export async function resendInvitation(
 ) {
 	if (actor.role !== 'admin') throw forbidden('Only an admin can invite people.');
 	await transaction(async (tx) => {
+		if (!(await lockUser(tx, userId))) throw notFound('The person');
 		const [person] = await tx
 			.select({
 				id: users.id,

@@ -1,5 +1,5 @@
 // Atmosphere readings and the box's atmosphere state.
-// Every write takes the box row's lock first (SELECT … FOR UPDATE, as bookings do), so the
+// Every write takes the box row's lock first (lockBox, as bookings do), so the
 // state follows the newest reading even when readings arrive at the same moment.
 import { desc, eq } from 'drizzle-orm';
 import {

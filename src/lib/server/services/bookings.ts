@@ -128,9 +128,9 @@ async function insertBooking(
 }
 
 /**
- * Creates a booking. The box row is locked (SELECT … FOR UPDATE) before anything that
- * overlaps is read, so two requests for the same slot are serialised by MariaDB and
- * never both succeed.
+ * Creates a booking. The box row is locked (a certified write, db/locks.ts) before anything
+ * that overlaps is read, so two requests for the same slot are serialised by MariaDB, or
+ * refused at certification on a Galera cluster and run again, and never both succeed.
  */
 export async function createBooking(actor: Actor, input: BookingInput, now = new Date()) {
 	const gates = await readGates(actor.id, input.boxId);

@@ -41,6 +41,7 @@ export async function check(
 ) {
 	const boxId = await boxOf(bookingId);
 	const { value, state } = await withReadings(boxId, actor.id, async (tx, box) => {
+		// Under the box's lock (withReadings); the booking is updated below.
 		const [booking] = await tx
 			.select()
 			.from(bookings)

@@ -23,6 +23,7 @@ function mustAdmin(actor: Actor) {
 	if (actor.role !== 'admin') throw forbidden('Only an admin can deactivate or reactivate people.');
 }
 
+/** The person's row under its lock; both callers update it, so on a cluster it certifies. */
 async function lockPerson(tx: Transaction, userId: number) {
 	const [person] = await tx
 		.select({ id: users.id, name: users.name, email: users.email, status: users.status })
@@ -91,12 +92,14 @@ export async function deactivationPreview(actor: Actor, userId: number, now = ne
  */
 export async function deactivateUser(actor: Actor, userId: number, now = new Date()) {
 	mustAdmin(actor);
+	// Which boxes to lock is read before the transaction: the locks must be its first
+	// statements (db/locks.ts), so its later reads see what was committed meanwhile.
+	const seen = await futureBookings(db, userId, now);
+	const boxIds = [...new Set(seen.map((b) => b.boxId))].sort((a, b) => a - b);
 	return transaction(async (tx) => {
 		// The box rows first, in one order, as every write that frees box time does; then the
 		// person, then their bookings again, now locked.
-		const seen = await futureBookings(tx, userId, now);
-		for (const boxId of [...new Set(seen.map((b) => b.boxId))].sort((a, b) => a - b))
-			await lockBox(tx, boxId);
+		for (const boxId of boxIds) await lockBox(tx, boxId);
 		const person = await lockPerson(tx, userId);
 		refuse(actor, person);
 		const held = await futureBookings(tx, userId, now).for('update');

@@ -43,19 +43,29 @@ import { closeOutage } from './outages';
 
 type Q = Database | Transaction;
 
-async function lockChange(tx: Transaction, changeId: number) {
-	const [row] = await tx
+/**
+ * The box a change is on, read before its transaction: the box lock must be the
+ * transaction's first statement (db/locks.ts), and a change never moves to another port.
+ */
+async function boxOfChange(changeId: number) {
+	const [row] = await db
 		.select({ boxId: boxPorts.boxId })
 		.from(gloveChanges)
 		.innerJoin(boxPorts, eq(boxPorts.id, gloveChanges.portId))
 		.where(eq(gloveChanges.id, changeId));
 	if (!row) throw notFound('The glove change');
-	const box = await lockBox(tx, row.boxId);
+	return row.boxId;
+}
+
+/** The box's lock first, then the change's row (which every caller updates). */
+async function lockChange(tx: Transaction, boxId: number, changeId: number) {
+	const box = await lockBox(tx, boxId);
 	const [change] = await tx
 		.select()
 		.from(gloveChanges)
 		.where(eq(gloveChanges.id, changeId))
 		.for('update');
+	if (!change) throw notFound('The glove change');
 	return { box, change };
 }
 
@@ -78,8 +88,9 @@ export async function recordStep(
 ) {
 	mustManage(actor);
 	const [who] = await db.select({ name: users.name }).from(users).where(eq(users.id, actor.id));
+	const boxId = await boxOfChange(changeId);
 	await transaction(async (tx) => {
-		const { change } = await lockChange(tx, changeId);
+		const { change } = await lockChange(tx, boxId, changeId);
 		const entry: StepEntry = {
 			key: input.step,
 			at: now.toISOString(),
@@ -117,8 +128,9 @@ export async function recordStep(
 /** Undoes the last step; a glove taken from stock goes back. */
 export async function undoLastStep(actor: Actor, changeId: number) {
 	mustManage(actor);
+	const boxId = await boxOfChange(changeId);
 	await transaction(async (tx) => {
-		const { change } = await lockChange(tx, changeId);
+		const { change } = await lockChange(tx, boxId, changeId);
 		mustBeOpen(change);
 		const { entries, undone } = undoStep(change.steps);
 		if (!undone) throw new ServiceError(409, 'No step has been recorded yet.');
@@ -140,8 +152,9 @@ export async function undoLastStep(actor: Actor, changeId: number) {
 /** Sets the glove volume the flush estimate uses. */
 export async function setGloveVolume(actor: Actor, changeId: number, gloveVolumeL: number) {
 	mustManage(actor);
+	const boxId = await boxOfChange(changeId);
 	await transaction(async (tx) => {
-		const { change } = await lockChange(tx, changeId);
+		const { change } = await lockChange(tx, boxId, changeId);
 		mustBeOpen(change);
 		await tx.update(gloveChanges).set({ gloveVolumeL }).where(eq(gloveChanges.id, changeId));
 	});
@@ -214,8 +227,9 @@ export async function completeGloveChange(
 	now = new Date()
 ) {
 	mustManage(actor);
+	const boxId = await boxOfChange(changeId);
 	return transaction(async (tx) => {
-		const { box, change } = await lockChange(tx, changeId);
+		const { box, change } = await lockChange(tx, boxId, changeId);
 		mustBeOpen(change);
 		const [port] = await tx.select().from(boxPorts).where(eq(boxPorts.id, change.portId));
 		const { blockers, cycles } = await assess(tx, change, box, port, input);
@@ -304,8 +318,9 @@ export async function abandonGloveChange(
 	now = new Date()
 ) {
 	mustManage(actor);
+	const boxId = await boxOfChange(changeId);
 	await transaction(async (tx) => {
-		const { change } = await lockChange(tx, changeId);
+		const { change } = await lockChange(tx, boxId, changeId);
 		mustBeOpen(change);
 		const done = (key: StepKey) =>
 			change.steps.some((e) => e.key === key && e.skipReason === undefined);

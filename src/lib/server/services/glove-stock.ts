@@ -60,6 +60,7 @@ export async function updateStock(
 ) {
 	mustManage(actor);
 	await transaction(async (tx) => {
+		// The row is updated below, so on a cluster the lock certifies as it is.
 		const [row] = await tx.select().from(gloveStock).where(eq(gloveStock.id, id)).for('update');
 		if (!row) throw notFound('That kind of spare glove');
 		await tx.update(gloveStock).set(input).where(eq(gloveStock.id, id));
@@ -88,6 +89,7 @@ async function tellLow(tx: Transaction, row: GloveStock, now: Date) {
 /** Takes one glove of the fitted kind from stock, in the caller's transaction. */
 export async function takeFromStock(tx: Transaction, glove: FittedGlove, now: Date) {
 	if (!glove.stockId) return;
+	// The count is lowered below, so on a cluster the lock certifies as it is.
 	const [row] = await tx
 		.select()
 		.from(gloveStock)

@@ -67,6 +67,7 @@ export async function createTask(actor: Actor, boxId: number, input: TaskInput, 
 	});
 }
 
+/** The task's row under its lock; every caller updates it, so on a cluster it certifies. */
 async function lockTask(tx: Transaction, taskId: number) {
 	const [task] = await tx
 		.select()
@@ -77,15 +78,23 @@ async function lockTask(tx: Transaction, taskId: number) {
 	return task;
 }
 
-/** The box's row first, then the task's: the lock order of every write that touches a box. */
-async function lockBoxAndTask(tx: Transaction, taskId: number) {
-	const [row] = await tx
+/**
+ * The box a task is for, read before its transaction: the box lock must be the
+ * transaction's first statement (db/locks.ts), and a task never moves to another box.
+ */
+async function boxOfTask(taskId: number) {
+	const [row] = await db
 		.select({ boxId: maintenanceTasks.boxId })
 		.from(maintenanceTasks)
 		.where(eq(maintenanceTasks.id, taskId));
 	if (!row) throw notFound('The maintenance task');
-	await lockBox(tx, row.boxId);
-	return lockTask(tx, taskId);
+	return row.boxId;
+}
+
+/** The box's row first, then the task's: the lock order of every write that touches a box. */
+async function lockBoxAndTask(tx: Transaction, boxId: number, taskId: number) {
+	const box = await lockBox(tx, boxId);
+	return { box, task: await lockTask(tx, taskId) };
 }
 
 /** Changes a task's interval or title; the due date follows from the last time it was done. */
@@ -145,8 +154,9 @@ export async function completeTask(
 	now = new Date()
 ) {
 	mustManage(actor);
+	const boxId = await boxOfTask(taskId);
 	return transaction(async (tx) => {
-		const task = await lockBoxAndTask(tx, taskId);
+		const { task } = await lockBoxAndTask(tx, boxId, taskId);
 		if (!task.active) throw new ServiceError(409, 'This task is retired.');
 		let endedOutage = false;
 		let plannedAhead: Date | null = null;
@@ -192,8 +202,9 @@ export async function planOutage(
 	now = new Date()
 ) {
 	mustManage(actor);
+	const boxId = await boxOfTask(taskId);
 	return transaction(async (tx) => {
-		const task = await lockBoxAndTask(tx, taskId);
+		const { box, task } = await lockBoxAndTask(tx, boxId, taskId);
 		const length = minutes ?? task.outageMinutes;
 		if (!(length > 0))
 			throw new ServiceError(400, 'Give the outage a length in minutes.', {
@@ -215,7 +226,7 @@ export async function planOutage(
 		const { outageId, cancelledBookingIds } = await openOutage(
 			tx,
 			actor,
-			await lockBox(tx, task.boxId),
+			box,
 			{
 				start,
 				end,

@@ -22,7 +22,9 @@ export function mustManage(
  * The open bookings on the box whose hold [start_at, blocked_until) overlaps [start, end):
  * holdOverlaps of $lib/domain/booking-rules, the rule that also refuses a new booking, so an
  * outage starting in a purge buffer cancels its booking. The SQL selects by that span, the
- * predicate decides. With `lock`, the rows read are locked for the caller's transaction.
+ * predicate decides. With `lock`, the rows read are locked for the caller's transaction,
+ * which holds the box's lock (the certified one, db/locks.ts) and cancels them: no lock
+ * here needs to be a write of its own.
  */
 export async function overlapping(
 	q: Database | Transaction,

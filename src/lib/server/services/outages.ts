@@ -1,6 +1,7 @@
 import { eq, inArray, sql } from 'drizzle-orm';
 import type { OutageKind } from '$lib/domain/bookings';
-import type { Transaction } from '../db';
+import { db, type Transaction } from '../db';
+import type { Database } from '../db/connect';
 import { bookings, gloveChanges, outages, type Box } from '../db/schema';
 import { bookingCancelled } from '../mail/messages';
 import { enqueueMany, type Outgoing } from '../mail/outbox';
@@ -146,17 +147,27 @@ export async function openOutage(
 }
 
 /**
- * Locks the outage's box, then reads the outage: the box row first, as every write that
- * changes a box's time or state takes it.
+ * The box an outage is on. Read before the transaction that changes the outage (`db`), as
+ * the box lock must be its first statement (db/locks.ts); an outage never moves to another
+ * box. Inside a transaction that already holds the box's lock, `tx` may read it.
  */
-export async function lockOutage(tx: Transaction, outageId: number) {
-	const [found] = await tx
+export async function boxOfOutage(outageId: number, q: Database | Transaction = db) {
+	const [found] = await q
 		.select({ boxId: outages.boxId })
 		.from(outages)
 		.where(eq(outages.id, outageId));
 	if (!found) throw notFound('The outage');
-	const box = await lockBox(tx, found.boxId);
+	return found.boxId;
+}
+
+/**
+ * Locks the outage's box, then reads the outage: the box row first, as every write that
+ * changes a box's time or state takes it. `boxId` from boxOfOutage.
+ */
+export async function lockOutage(tx: Transaction, outageId: number, boxId: number) {
+	const box = await lockBox(tx, boxId);
 	const [outage] = await tx.select().from(outages).where(eq(outages.id, outageId));
+	if (!outage) throw notFound('The outage');
 	return { box, outage };
 }
 
@@ -223,8 +234,9 @@ export async function moveOutage(
 /** Moves the expected end. A later end cancels what the longer outage now overlaps. */
 export async function extendOutage(actor: Actor, outageId: number, end: Date, now = new Date()) {
 	mustManage(actor, 'Only a manager can change an outage.');
+	const boxId = await boxOfOutage(outageId);
 	return transaction(async (tx) => {
-		const { box, outage: current } = await lockOutage(tx, outageId);
+		const { box, outage: current } = await lockOutage(tx, outageId, boxId);
 		if (end <= current.startAt) {
 			throw new ServiceError(400, 'The expected end must be after the start.', {
 				fields: { end: 'The expected end must be after the start.' }
@@ -250,8 +262,9 @@ export async function extendOutage(actor: Actor, outageId: number, end: Date, no
  */
 export async function endOutage(actor: Actor, outageId: number, now = new Date()) {
 	mustManage(actor, 'Only a manager can end an outage.');
+	const boxId = await boxOfOutage(outageId);
 	return transaction(async (tx) => {
-		const { outage: before } = await lockOutage(tx, outageId);
+		const { outage: before } = await lockOutage(tx, outageId, boxId);
 		await refuseOpenChange(tx, outageId);
 		const what = await closeOutage(tx, actor, outageId, now);
 		if (what === 'withdrawn') return { ...before, withdrawn: true };
@@ -262,7 +275,7 @@ export async function endOutage(actor: Actor, outageId: number, now = new Date()
 
 /**
  * Ends an outage inside the caller's transaction (a completed glove change, a finished
- * maintenance task): it locks the box first (a no-op when the caller already holds it).
+ * maintenance task), which holds the box's lock already (taken again here, harmlessly).
  *
  * An outage that has not begun yet is withdrawn: its row is deleted, so the calendar, the
  * feeds and the booking rules stop seeing it at once (ending it "now" would leave an empty
@@ -278,7 +291,8 @@ export async function closeOutage(
 	outageId: number,
 	now: Date
 ): Promise<'ended' | 'withdrawn'> {
-	const { outage: current } = await lockOutage(tx, outageId);
+	// The caller holds the box's lock already, so the outage's box is read in `tx`.
+	const { outage: current } = await lockOutage(tx, outageId, await boxOfOutage(outageId, tx));
 	if (current.endAt <= now) throw new ServiceError(409, 'This outage has already ended.');
 	if (current.startAt > now && !(await hasGloveChange(tx, outageId))) {
 		await withdrawOutage(tx, actor, current);

@@ -198,6 +198,8 @@ export async function closeMonth(actor: Actor, monthText: string, now = new Date
 
 async function closeIn(actor: Actor, month: string, now: Date) {
 	return transaction(async (tx) => {
+		// On a cluster, two nodes closing one month both insert its primary key, which
+		// certification refuses for one; run again, it finds the month closed.
 		const [already] = await tx
 			.select()
 			.from(closedMonths)

@@ -187,6 +187,7 @@ export async function updateModule(actor: Actor, moduleId: number, input: Module
 	await checkPrerequisites(moduleId, input.prerequisiteIds);
 	try {
 		await transaction(async (tx) => {
+			// The row is updated below, so on a cluster the lock certifies as it is.
 			const [before] = await tx
 				.select()
 				.from(trainingModules)

@@ -9,6 +9,7 @@ import { requestRefusal } from '$lib/domain/training-requests';
 import type { TrainingRequestInput } from '$lib/validation/training';
 import { config } from '../config';
 import { db, type Transaction } from '../db';
+import { lockUser } from '../db/locks';
 import {
 	certifications,
 	moduleTrainers,
@@ -60,6 +61,9 @@ export async function requestTraining(actor: Actor, input: TrainingRequestInput,
 		.where(eq(trainingModules.id, input.moduleId));
 	if (!module) throw notFound('The training module');
 	return transaction(async (tx) => {
+		// The person's lock first, as a certified write: on a cluster, two nodes' requests
+		// for one module meet there, and the second sees the first's request.
+		if (!(await lockUser(tx, actor.id))) throw notFound('The person');
 		const [person] = await tx
 			.select({ id: users.id, name: users.name })
 			.from(users)
@@ -191,7 +195,10 @@ export async function openRequestsOf(userId: number) {
 		.where(and(eq(trainingRequests.userId, userId), eq(trainingRequests.status, 'open')));
 }
 
-/** The request under its row lock, still open; 404 or 409 otherwise. */
+/**
+ * The request under its row lock, still open; 404 or 409 otherwise. Every caller then
+ * updates the row, so on a cluster the lock certifies as it is.
+ */
 async function lockOpen(tx: Transaction, requestId: number, ownerOnly?: number) {
 	const [request] = await tx
 		.select({
@@ -290,6 +297,7 @@ export async function closeOpenRequest(
 		eq(trainingRequests.moduleId, moduleId),
 		eq(trainingRequests.status, 'open')
 	);
+	// The rows are updated below: the lock certifies as it is.
 	const rows = await tx
 		.select({ id: trainingRequests.id })
 		.from(trainingRequests)

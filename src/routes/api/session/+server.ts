@@ -1,4 +1,5 @@
 import { json } from '@sveltejs/kit';
+import { serve } from '$lib/server/api';
 import { endSession, startSession } from '$lib/server/auth';
 import { fail, readJson } from '$lib/server/http';
 import { checkSignIn, profile, signInMessages } from '$lib/server/services/accounts';
@@ -8,7 +9,10 @@ import type { RequestHandler } from './$types';
 
 export const POST: RequestHandler = async ({ request, cookies, getClientAddress, setHeaders }) => {
 	const { email, password } = await readJson(request, signInSchema);
-	const result = await checkSignIn(email, password, getClientAddress(), deviceToken(cookies));
+	// serve(): a sign-in the rate limit store cannot count is a 503 in the contract's shape.
+	const result = await serve(() =>
+		checkSignIn(email, password, getClientAddress(), deviceToken(cookies))
+	);
 	if (result.kind === 'throttled') {
 		setHeaders({ 'retry-after': String(result.retryAfterSeconds) });
 		fail(429, signInMessages.throttled(result.retryAfterSeconds), {
