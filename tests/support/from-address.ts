@@ -7,7 +7,7 @@
 // address's budget without touching 127.0.0.1, which every other test signs in from.
 import { randomInt } from 'node:crypto';
 import http from 'node:http';
-import { baseUrl } from './http';
+import { baseUrl, Client } from './http';
 
 const used = new Set<string>();
 
@@ -22,24 +22,10 @@ export function uniqueAddress(): string {
 	}
 }
 
-/** The same surface as `Client` (tests/support/http.ts), over sockets bound to `address`. */
-export class AddressClient {
-	private cookies = new Map<string, string>();
-
-	constructor(readonly address = uniqueAddress()) {}
-
-	get signedIn(): boolean {
-		return this.cookies.has('bw_session');
-	}
-
-	/** A cookie's value as the app last set it. */
-	cookie(name: string): string | undefined {
-		return this.cookies.get(name);
-	}
-
-	/** Puts a cookie in the jar, as a browser holding it would send it. */
-	setCookie(name: string, value: string) {
-		this.cookies.set(name, value);
+/** A `Client` (tests/support/http.ts) whose requests leave over sockets bound to `address`. */
+export class AddressClient extends Client {
+	constructor(readonly address = uniqueAddress()) {
+		super();
 	}
 
 	async request(
@@ -119,29 +105,5 @@ export class AddressClient {
 		}
 		const empty = status === 204 || status === 304;
 		return new Response(empty ? null : text, { status, headers: responseHeaders });
-	}
-
-	get(path: string) {
-		return this.request('GET', path);
-	}
-	post(path: string, body?: unknown) {
-		return this.request('POST', path, body);
-	}
-	delete(path: string) {
-		return this.request('DELETE', path);
-	}
-	/** Posts a form to a SvelteKit action, as a browser without JavaScript would. */
-	form(path: string, fields: Record<string, string | number>) {
-		const params = new URLSearchParams();
-		for (const [k, v] of Object.entries(fields)) params.set(k, String(v));
-		return this.request('POST', path, params);
-	}
-
-	async signIn(email: string, password: string) {
-		const response = await this.post('/api/session', { email, password });
-		if (response.status !== 200) {
-			throw new Error(`sign-in as ${email} gave ${response.status}: ${await response.text()}`);
-		}
-		return response;
 	}
 }

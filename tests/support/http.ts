@@ -2,10 +2,20 @@
 export const baseUrl = process.env.APP_URL ?? 'http://127.0.0.1:3100';
 
 export class Client {
-	private cookies = new Map<string, string>();
+	protected cookies = new Map<string, string>();
 
 	get signedIn(): boolean {
 		return this.cookies.has('bw_session');
+	}
+
+	/** A cookie's value as the app last set it. */
+	cookie(name: string): string | undefined {
+		return this.cookies.get(name);
+	}
+
+	/** Puts a cookie in the jar, as a browser holding it would send it. */
+	setCookie(name: string, value: string) {
+		this.cookies.set(name, value);
 	}
 
 	async request(
@@ -13,7 +23,7 @@ export class Client {
 		path: string,
 		body?: unknown,
 		headers: Record<string, string> = {}
-	) {
+	): Promise<Response> {
 		const init: RequestInit = { method, redirect: 'manual', headers: { ...headers } };
 		const h = init.headers as Record<string, string>;
 		if (this.cookies.size) h.cookie = [...this.cookies].map(([k, v]) => `${k}=${v}`).join('; ');

@@ -3,9 +3,9 @@
 // the approvals list, and one booking as the API gives it. Times carry the facility zone's
 // offset.
 import type { CalendarEvent } from '$lib/domain/calendar-event';
-import { and, asc, count, eq, gt, inArray, like, lt, lte, ne, or, sql } from 'drizzle-orm';
+import { and, asc, count, eq, gt, inArray, lt, lte, ne, or, sql } from 'drizzle-orm';
 import type { ListQuery, ListSpec } from '$lib/domain/listing';
-import { orderOf, pageInSql } from '../listing';
+import { matchesWords, orderOf, pageInSql } from '../listing';
 import { holderStatus, mayCancel } from '$lib/domain/booking-state';
 import { holdingStatuses, type BookingStatus } from '$lib/domain/bookings';
 import { hasRole, type Role } from '$lib/domain/roles';
@@ -119,15 +119,11 @@ export async function pastBookingsOf(
 	query: ListQuery<(typeof pastBookingsList.sorts)[number], 'status'>,
 	now = new Date()
 ) {
-	const words = query.q.split(/\s+/).filter(Boolean);
 	const where = and(
 		eq(bookings.userId, userId),
 		or(lte(bookings.endAt, now), eq(bookings.status, 'cancelled')),
 		query.filters.status ? eq(bookings.status, query.filters.status as BookingStatus) : undefined,
-		...words.map((w) => {
-			const pattern = `%${w.replace(/[\\%_]/g, (c) => `\\${c}`)}%`;
-			return or(like(boxes.name, pattern), like(bookings.purpose, pattern));
-		})
+		matchesWords(query.q, [boxes.name, bookings.purpose])
 	);
 	return pageInSql(
 		query,
