@@ -7,9 +7,13 @@ import { db } from '../db';
 import { outbox } from '../db/schema';
 import { outboxGauges, registry, schedulerState } from '../observability';
 
-/** Resolves once the database answers a trivial query; rejects when it cannot. */
+/**
+ * Resolves once the database answers a query on a table; rejects when it cannot. A table,
+ * not a bare `SELECT 1`: a Galera node told to refuse queries (wsrep_reject_queries) still
+ * answers the bare one, and only refuses (1047) what reads data.
+ */
 export async function checkDatabase(): Promise<void> {
-	await db.execute(sql`SELECT 1`);
+	await db.execute(sql`SELECT 1 FROM boxes LIMIT 1`);
 }
 
 /** Rejects with 'timed out' after `ms`, so a hung pool still gets an answer. */
