@@ -72,8 +72,10 @@ function row(html: string, testId: string, match: (rowHtml: string) => boolean):
 	return text(rows[0]);
 }
 
-async function reportPage(client: Client, weeks: number | string) {
-	const response = await client.get(`/reports?weeks=${weeks}`);
+async function reportPage(client: Client, weeks: number | string, gloveBox?: string) {
+	// The glove wear list pages; a box of this test is found by its name among the run's many.
+	const search = gloveBox ? `&gloves.q=${encodeURIComponent(gloveBox)}` : '';
+	const response = await client.get(`/reports?weeks=${weeks}${search}`);
 	expect(response.status).toBe(200);
 	return response.text();
 }
@@ -135,7 +137,7 @@ describe('reports', () => {
 			.insert(gloveInspections)
 			.values({ gloveId: old.id, at: new Date(Date.now() - 2 * DAY_MS), damaged: false });
 
-		const html = await reportPage(manager, 4);
+		const html = await reportPage(manager, 4, box);
 		expect(html).toContain('href="/reports"');
 		expect(text(html)).toContain('4 ISO weeks');
 

@@ -33,6 +33,7 @@ export const load: PageServerLoad = async (event) => {
 			sinceCheck: (p) => p.wear?.bookedHoursSinceCheck,
 			state: (p) => (p.wear ? flagRank[p.wear.flag] : undefined)
 		},
+		text: (p) => boxName.get(p.boxId) ?? '',
 		filter: { state: (p, flag) => p.wear?.flag === flag }
 	});
 	return { weeks, report, gloves: gloves.rows, glovesView: gloves.view };
