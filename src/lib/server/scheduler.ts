@@ -6,11 +6,13 @@ import { logger, noteSchedulerRun, noteSchedulerStart } from './observability';
 import { remindExpiringCertifications } from './services/certification-reminders';
 import { notifyDueTasks } from './services/maintenance';
 import { markNoShows } from './services/no-shows';
+import { finishOutageCancellations } from './services/outages';
 
 const jobs: { name: string; run: () => Promise<unknown> }[] = [
 	{ name: 'maintenance due', run: () => notifyDueTasks() },
 	{ name: 'no-shows', run: () => markNoShows() },
-	{ name: 'certification reminders', run: () => remindExpiringCertifications() }
+	{ name: 'certification reminders', run: () => remindExpiringCertifications() },
+	{ name: 'outage cancellations', run: () => finishOutageCancellations() }
 ];
 
 let timer: ReturnType<typeof setTimeout> | undefined;

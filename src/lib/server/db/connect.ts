@@ -30,8 +30,85 @@ export function connect(url: string, connectionLimit = 10, options: SessionOptio
 		supportBigNumbers: true
 	});
 	prepareSessions(pool.pool, options);
-	const db = drizzle(pool, drizzleOptions);
+	const db = drizzle(retryingReads(pool), drizzleOptions);
 	return { pool, db };
+}
+
+/** The pause before a plain read is sent again, for the balancer to move to a ready node. */
+export const READ_RETRY_MS = 500;
+
+/**
+ * The pool as drizzle's `db` sees it (transactions take their connections from the pool
+ * itself, transaction.ts): a plain read outside a transaction that a node not ready (1047)
+ * refused, or whose connection was lost (a node stopping while the balancer has not yet
+ * moved to another, about 0.3 s), is sent once more after READ_RETRY_MS, on a new connection
+ * (mysql2 drops a broken one). Never a write, nor a statement list: only text that is one
+ * SELECT, which changes nothing however often it runs.
+ */
+export function retryingReads<P extends Pick<mysql.Pool, 'query' | 'execute'>>(
+	pool: P,
+	sleep = (ms: number) => new Promise<void>((resolve) => setTimeout(resolve, ms))
+): P {
+	const again = (method: 'query' | 'execute') =>
+		async function (...args: unknown[]) {
+			const send = () => (pool[method] as (...a: unknown[]) => Promise<unknown>).apply(pool, args);
+			try {
+				return await send();
+			} catch (error) {
+				if (!isPlainRead(args[0]) || !isTransient(error)) throw error;
+				await sleep(READ_RETRY_MS);
+				return send();
+			}
+		};
+	const query = again('query');
+	const execute = again('execute');
+	return new Proxy(pool, {
+		get(target, prop) {
+			if (prop === 'query') return query;
+			if (prop === 'execute') return execute;
+			const value = Reflect.get(target, prop, target);
+			return typeof value === 'function' ? value.bind(target) : value;
+		}
+	});
+}
+
+/** One SELECT, nothing after it, no locking clause. */
+export function isPlainRead(statement: unknown) {
+	const text =
+		typeof statement === 'string' ? statement : (statement as { sql?: unknown } | null)?.sql;
+	if (typeof text !== 'string') return false;
+	return (
+		/^[\s(]*select\b/i.test(text) &&
+		!/;\s*\S/.test(text) &&
+		!/\bfor\s+update\b|\block\s+in\s+share\s+mode\b|\binto\s+@|\binto\s+outfile\b/i.test(text)
+	);
+}
+
+/**
+ * A node not ready (1047: joining, donating or cut off), shutting down (1053), a connection
+ * killed or lost (1927, 2006, 2013, or the driver's own fatal errors).
+ */
+const TRANSIENT_ERRNOS = new Set([1047, 1053, 1927, 2006, 2013]);
+const TRANSIENT_CODES = new Set([
+	'PROTOCOL_CONNECTION_LOST',
+	'ECONNRESET',
+	'ECONNREFUSED',
+	'EPIPE'
+]);
+
+function isTransient(error: unknown) {
+	let err = error as
+		{ errno?: number; code?: string; fatal?: boolean; cause?: unknown } | undefined;
+	for (let depth = 0; err && typeof err === 'object' && depth < 4; depth++) {
+		if (
+			(err.errno !== undefined && TRANSIENT_ERRNOS.has(err.errno)) ||
+			(err.code !== undefined && TRANSIENT_CODES.has(err.code)) ||
+			err.fatal === true
+		)
+			return true;
+		err = err.cause as typeof err;
+	}
+	return false;
 }
 
 type CoreConnection = {

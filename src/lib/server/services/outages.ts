@@ -1,8 +1,8 @@
-import { eq, inArray, sql } from 'drizzle-orm';
+import { and, asc, eq, gt, inArray, sql } from 'drizzle-orm';
 import type { OutageKind } from '$lib/domain/bookings';
 import { db, type Transaction } from '../db';
 import type { Database } from '../db/connect';
-import { bookings, gloveChanges, outages, type Box } from '../db/schema';
+import { auditLog, bookings, gloveChanges, outages, type Box } from '../db/schema';
 import { bookingCancelled } from '../mail/messages';
 import { enqueueMany, type Outgoing } from '../mail/outbox';
 import type { Actor } from './accounts';
@@ -33,6 +33,24 @@ async function cancelOverlapping(
 ): Promise<number[]> {
 	if (window.end <= window.start) return [];
 	const hit = await overlapping(tx, box.id, window.start, window.end, true);
+	return cancelBookings(tx, actor.id, box, outageId, hit, reason, now);
+}
+
+type Hit = Awaited<ReturnType<typeof overlapping>>[number];
+
+/**
+ * Cancels the bookings `hit` (read locked, in `tx`, under the box's lock) for the outage and
+ * queues their messages in the same transaction, each under its dedupe key.
+ */
+async function cancelBookings(
+	tx: Transaction,
+	actorId: number | null,
+	box: Box,
+	outageId: number,
+	hit: Hit[],
+	reason: string,
+	now: Date
+): Promise<number[]> {
 	if (!hit.length) return [];
 	const ids = hit.map((b) => b.id);
 	await tx
@@ -42,7 +60,7 @@ async function cancelOverlapping(
 			cancelCause: 'outage',
 			cancelReason: reason,
 			cancelledAt: now,
-			cancelledBy: actor.id,
+			cancelledBy: actorId,
 			outageId,
 			sequence: sql`${bookings.sequence} + 1`
 		})
@@ -91,12 +109,124 @@ export async function createOutage(
 			fields: { end: 'The expected end must be after the start.' }
 		});
 	}
-	return transaction(async (tx) => {
-		const box = await lockBox(tx, boxId);
-		const { outageId, cancelledBookingIds } = await openOutage(tx, actor, box, input, now);
-		const [outage] = await tx.select().from(outages).where(eq(outages.id, outageId));
-		return { outage, cancelledBookingIds };
+	// First a short transaction that only stores the outage, under the box's lock: from its
+	// commit on, the booking check refuses every slot inside it, on any node. One long
+	// transaction that also cancelled a few hundred bookings kept losing certification to
+	// bookings committed meanwhile on another node (issue 16).
+	const outageId = await transaction(async (tx) => {
+		await lockBox(tx, boxId);
+		const [created] = await tx
+			.insert(outages)
+			.values({
+				boxId,
+				startAt: input.start,
+				endAt: input.end,
+				kind: input.kind,
+				reason: input.reason,
+				createdBy: actor.id
+			})
+			.$returningId();
+		return created.id;
 	});
+	return finishOutage(outageId, boxId, now);
+}
+
+/** Bookings cancelled per transaction while an outage is being opened. */
+const CANCEL_BATCH = 40;
+
+/**
+ * Cancels what a stored outage overlaps, CANCEL_BATCH bookings per short transaction (each
+ * takes the box's lock first and reads again what is still open inside the outage, so a
+ * booking that slipped in before the outage was stored is caught by the next batch), until
+ * none is left. The last transaction, finding none, writes the `outage.created` audit entry
+ * once (the box's lock serialises whoever finishes it: the request or the scheduler, see
+ * finishOutageCancellations) and answers the outage with every booking it cancelled.
+ */
+async function finishOutage(outageId: number, boxId: number, now: Date) {
+	for (;;) {
+		const done = await transaction(async (tx) => {
+			const { box, outage } = await lockOutage(tx, outageId, boxId);
+			const hit = await overlapping(tx, box.id, outage.startAt, outage.endAt, true);
+			if (hit.length) {
+				const batch = hit.slice(0, CANCEL_BATCH);
+				await cancelBookings(tx, outage.createdBy, box, outage.id, batch, outage.reason, now);
+				return null;
+			}
+			const cancelled = await tx
+				.select({ id: bookings.id })
+				.from(bookings)
+				.where(and(eq(bookings.outageId, outage.id), eq(bookings.cancelCause, 'outage')))
+				.orderBy(asc(bookings.startAt), asc(bookings.id));
+			const cancelledBookingIds = cancelled.map((b) => b.id);
+			if (!(await createdAudited(tx, outage.id))) {
+				await audit(tx, {
+					actorId: outage.createdBy,
+					action: 'outage.created',
+					entity: 'outage',
+					entityId: outage.id,
+					details: {
+						boxId: box.id,
+						kind: outage.kind,
+						start: outage.startAt.toISOString(),
+						end: outage.endAt.toISOString(),
+						cancelledBookingIds
+					}
+				});
+			}
+			return { outage, cancelledBookingIds };
+		});
+		if (done) return done;
+	}
+}
+
+/**
+ * For the scheduler: finishes outages whose cancelling was cut short (a process killed
+ * between batches of createOutage), found as outages stored over five minutes ago, not yet
+ * over, without their `outage.created` entry and with open bookings still inside them.
+ * Safe from several processes at once: each batch and the entry take the box's lock.
+ */
+export async function finishOutageCancellations(now = new Date()) {
+	const unfinished = await db
+		.select({
+			id: outages.id,
+			boxId: outages.boxId,
+			startAt: outages.startAt,
+			endAt: outages.endAt
+		})
+		.from(outages)
+		.where(
+			and(
+				gt(outages.endAt, now),
+				sql`${outages.createdAt} < NOW() - INTERVAL 5 MINUTE`,
+				sql`${outages.createdAt} > NOW() - INTERVAL 1 DAY`,
+				sql`NOT EXISTS (SELECT 1 FROM ${auditLog} WHERE ${auditLog.entity} = 'outage'
+					AND ${auditLog.entityId} = CAST(${outages.id} AS CHAR)
+					AND ${auditLog.action} = 'outage.created')`
+			)
+		)
+		.limit(20);
+	let finished = 0;
+	for (const o of unfinished) {
+		if (!(await overlapping(db, o.boxId, o.startAt, o.endAt, false)).length) continue;
+		await finishOutage(o.id, o.boxId, now);
+		finished++;
+	}
+	return finished;
+}
+
+async function createdAudited(q: Database | Transaction, outageId: number) {
+	const [entry] = await q
+		.select({ id: auditLog.id })
+		.from(auditLog)
+		.where(
+			and(
+				eq(auditLog.entity, 'outage'),
+				eq(auditLog.entityId, String(outageId)),
+				eq(auditLog.action, 'outage.created')
+			)
+		)
+		.limit(1);
+	return entry !== undefined;
 }
 
 /**
