@@ -133,7 +133,15 @@ export function databaseUnavailable(cause: unknown): ServiceError {
 		'unavailable'
 	);
 	(error as Error).cause = cause;
+	nothingSaved.add(error);
 	return error;
+}
+
+const nothingSaved = new WeakSet<object>();
+
+/** True for the 503 of a transaction refused every time: it wrote nothing at all. */
+export function wroteNothing(e: unknown): boolean {
+	return typeof e === 'object' && e !== null && nothingSaved.has(e);
 }
 
 function outcomeUnknown(cause: unknown): ServiceError {

@@ -11,6 +11,7 @@ import { alternativeFinder } from './alternatives';
 import { notFound, ServiceError } from './errors';
 import { cancellationKey, mustManage, overlapping, refuseOpenChange } from './outage-reads';
 import { transaction } from '../db/transaction';
+import { wroteNothing } from '../db/retry';
 import { lockBox } from '../db/locks';
 
 // The read side (previews, what an outage cancelled) lives in outage-reads.ts.
@@ -109,10 +110,22 @@ export async function createOutage(
 			fields: { end: 'The expected end must be after the start.' }
 		});
 	}
-	// First a short transaction that only stores the outage, under the box's lock: from its
-	// commit on, the booking check refuses every slot inside it, on any node. One long
-	// transaction that also cancelled a few hundred bookings kept losing certification to
-	// bookings committed meanwhile on another node (issue 16).
+	// One transaction first: the outage and every cancellation together, or nothing (a
+	// failure midway changes nothing). On a cluster with two writer nodes, that long
+	// transaction can keep losing certification to bookings committed meanwhile on the other
+	// node; when it was refused every time (so it wrote nothing), the outage is stored on its
+	// own in a short transaction, from whose commit on the booking check refuses every slot
+	// inside it on any node, and its bookings are cancelled in short steps (issue 16).
+	try {
+		return await transaction(async (tx) => {
+			const box = await lockBox(tx, boxId);
+			const { outageId, cancelledBookingIds } = await openOutage(tx, actor, box, input, now);
+			const [outage] = await tx.select().from(outages).where(eq(outages.id, outageId));
+			return { outage, cancelledBookingIds };
+		}, WHOLE_ATTEMPTS);
+	} catch (e) {
+		if (!wroteNothing(e)) throw e;
+	}
 	const outageId = await transaction(async (tx) => {
 		await lockBox(tx, boxId);
 		const [created] = await tx
@@ -130,6 +143,9 @@ export async function createOutage(
 	});
 	return finishOutage(outageId, boxId, now);
 }
+
+/** Tries of the all-or-nothing outage before it is opened in steps. */
+const WHOLE_ATTEMPTS = 4;
 
 /** Bookings cancelled per transaction while an outage is being opened. */
 const CANCEL_BATCH = 40;
