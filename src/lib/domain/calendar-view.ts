@@ -4,6 +4,7 @@
 // grid means "the next day". Dates are calendar days (YYYY-MM-DD) on the facility's wall clock.
 import { DateTime } from 'luxon';
 import { FACILITY_LOCALE } from './time';
+import { zoneOf } from './zone';
 
 const day = (date: string) => DateTime.fromISO(date, { zone: 'UTC', locale: FACILITY_LOCALE });
 
@@ -14,7 +15,7 @@ export function ymd(d: Date): string {
 }
 
 /** Today's date on the facility's clock, YYYY-MM-DD. */
-export const todayIn = (tz: string) => DateTime.now().setZone(tz).toISODate()!;
+export const todayIn = (tz: string) => DateTime.now().setZone(zoneOf(tz)).toISODate()!;
 
 /** YYYY-MM-DD `n` days later (or earlier). */
 export const addDays = (date: string, n: number) => day(date).plus({ days: n }).toISODate()!;

@@ -1,4 +1,5 @@
 import { DateTime } from 'luxon';
+import { zoneOf } from './zone';
 
 /**
  * The language of every date Boxwright writes out (weekday and month names), fixed so that
@@ -8,7 +9,7 @@ export const FACILITY_LOCALE = 'en-GB';
 
 /** Local wall-clock parts of an instant in the facility's zone. */
 export function local(at: Date, tz: string): DateTime {
-	return DateTime.fromJSDate(at, { zone: tz }).setLocale(FACILITY_LOCALE);
+	return DateTime.fromJSDate(at, { zone: zoneOf(tz) }).setLocale(FACILITY_LOCALE);
 }
 
 /**
@@ -46,7 +47,7 @@ export function formatDateLong(date: string | null | undefined): string {
 export function fromLocal(date: string, typed: string, tz: string): Date | null {
 	const time = parseClockTime(typed);
 	if (time === null) return null;
-	const dt = DateTime.fromISO(`${date}T${time}`, { zone: tz });
+	const dt = DateTime.fromISO(`${date}T${time}`, { zone: zoneOf(tz) });
 	if (!dt.isValid) return null;
 	// A wall-clock time skipped by a spring-forward change does not exist: refuse it.
 	if (dt.toFormat('yyyy-MM-dd') !== date || dt.toFormat('HH:mm') !== time) return null;
@@ -107,17 +108,17 @@ export function ago(at: Date, now = new Date()): string {
 export function wallClock(at: Date | string, tz: string): string {
 	const dt =
 		typeof at === 'string' ? DateTime.fromISO(at, { setZone: true }) : DateTime.fromJSDate(at);
-	return dt.setZone(tz).toFormat("yyyy-MM-dd'T'HH:mm:ss");
+	return dt.setZone(zoneOf(tz)).toFormat("yyyy-MM-dd'T'HH:mm:ss");
 }
 
 /** A floating wall-clock string ("2026-12-02T10:00…") read as time in `tz`. */
 export function fromWallClock(value: string, tz: string): Date {
-	return DateTime.fromISO(value.slice(0, 19), { zone: tz }).toJSDate();
+	return DateTime.fromISO(value.slice(0, 19), { zone: zoneOf(tz) }).toJSDate();
 }
 
 /** The zone's offset now, as "+01:00". */
 export function currentOffset(tz: string, at = new Date()): string {
-	return DateTime.fromJSDate(at).setZone(tz).toFormat('ZZ');
+	return DateTime.fromJSDate(at).setZone(zoneOf(tz)).toFormat('ZZ');
 }
 
 /** An ISO week (Monday 00:00 to the next Monday 00:00) on the facility's wall clock. */
