@@ -12,6 +12,7 @@ import {
 	researchGroups,
 	users
 } from '../../src/lib/server/db/schema';
+import { renderRow } from '../../src/lib/server/mail/render';
 import {
 	certifiedMemberAndBox,
 	closeTestDb,
@@ -45,8 +46,9 @@ async function lastMail(userId: number, kind: string) {
 async function linkToken(userId: number, kind: 'password_reset' | 'invitation') {
 	const mail = await lastMail(userId, kind);
 	const path = kind === 'password_reset' ? 'reset' : 'invite';
-	const match = new RegExp(`/${path}/([A-Za-z0-9_-]{43})(?![A-Za-z0-9_-])`).exec(mail.textBody);
-	if (!match) throw new Error(`no link in: ${mail.textBody}`);
+	const { text } = renderRow(mail);
+	const match = new RegExp(`/${path}/([A-Za-z0-9_-]{43})(?![A-Za-z0-9_-])`).exec(text);
+	if (!match) throw new Error(`no link in: ${text}`);
 	return { token: match[1], mail };
 }
 
@@ -164,10 +166,11 @@ describe('deactivation', () => {
 		for (const n of notices) {
 			expect(n.toAddress).toBe(member.email);
 			expect(n.icsMethod).toBe('CANCEL');
-			expect(n.icsBody).toContain('SEQUENCE:1');
-			expect(n.textBody).toContain('Reason: Account deactivated');
+			const { text, ics } = renderRow(n);
+			expect(ics).toContain('SEQUENCE:1');
+			expect(text).toContain('Reason: Account deactivated');
 			// They can no longer book, so the notice offers no rebooking.
-			expect(n.textBody).not.toContain('Rebook');
+			expect(text).not.toContain('Rebook');
 		}
 
 		const signIn = await new Client().post('/api/session', {

@@ -1,6 +1,7 @@
 import { afterAll, describe, expect, it } from 'vitest';
 import { and, count, eq, like } from 'drizzle-orm';
 import { atmosphereReadings, bookings, boxes, outbox } from '../../src/lib/server/db/schema';
+import { renderRow } from '../../src/lib/server/mail/render';
 import { certifiedMemberAndBox, closeTestDb, makeBox, makeUser, testDb } from '../support/db';
 import { errorOf, signedIn } from '../support/http';
 import { slot } from '../support/time';
@@ -302,7 +303,9 @@ describe('check-in and check-out', () => {
 			.select()
 			.from(outbox)
 			.where(like(outbox.subject, `%a problem noted with a reading`));
-		expect(notes.some((m) => m.textBody.includes('Left glove feels tacky at the cuff'))).toBe(true);
+		expect(
+			notes.some((m) => renderRow(m).text.includes('Left glove feels tacky at the cuff'))
+		).toBe(true);
 	});
 
 	it('opens check-in only shortly before the start, and prompts for it in the app', async () => {

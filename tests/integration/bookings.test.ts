@@ -1,6 +1,7 @@
 import { afterAll, describe, expect, it } from 'vitest';
 import { and, eq, sql } from 'drizzle-orm';
 import { auditLog, bookings, outages, outbox } from '../../src/lib/server/db/schema';
+import { renderRow } from '../../src/lib/server/mail/render';
 import {
 	certifiedMemberAndBox,
 	certify,
@@ -52,8 +53,9 @@ describe('POST /api/bookings', () => {
 			.from(outbox)
 			.where(eq(outbox.dedupeKey, `booking:${booking.id}:confirmed:0`));
 		expect(mail.icsMethod).toBe('REQUEST');
-		expect(mail.icsBody).toContain(`UID:booking-${booking.id}@boxwright`);
-		expect(mail.icsBody).toContain('METHOD:REQUEST');
+		const { ics } = renderRow(mail);
+		expect(ics).toContain(`UID:booking-${booking.id}@boxwright`);
+		expect(ics).toContain('METHOD:REQUEST');
 	});
 
 	it('50 simultaneous requests for the same slot: exactly one 201 and 49 × 409, no 5xx', async () => {
@@ -328,7 +330,7 @@ describe('approval', () => {
 			.select()
 			.from(outbox)
 			.where(eq(outbox.dedupeKey, `booking:${booking.id}:confirmed:1`));
-		expect(mail.icsBody).toContain('SEQUENCE:1');
+		expect(renderRow(mail).ics).toContain('SEQUENCE:1');
 		const member = await signedIn(await makeUser('member'));
 		expect(
 			(await member.form('/manage/approvals?/approveBooking', { bookingId: booking.id })).status

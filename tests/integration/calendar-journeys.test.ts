@@ -13,6 +13,7 @@ import {
 import { certifiedMemberAndBox, certify, closeTestDb, makeUser, testDb } from '../support/db';
 import { errorOf, signedIn, type Client } from '../support/http';
 import { slot } from '../support/time';
+import { renderRow } from '../../src/lib/server/mail/render';
 
 afterAll(closeTestDb);
 
@@ -61,8 +62,9 @@ describe('PATCH /api/bookings/:id', () => {
 			.from(outbox)
 			.where(eq(outbox.dedupeKey, `booking:${booking.id}:confirmed:1`));
 		expect(mail.subject).toMatch(/^Changed: /);
-		expect(mail.icsBody).toContain(`UID:booking-${booking.id}@boxwright`);
-		expect(mail.icsBody).toContain('SEQUENCE:1');
+		const { ics } = renderRow(mail);
+		expect(ics).toContain(`UID:booking-${booking.id}@boxwright`);
+		expect(ics).toContain('SEQUENCE:1');
 		const entries = await testDb()
 			.select()
 			.from(auditLog)

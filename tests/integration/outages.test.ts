@@ -22,6 +22,7 @@ import { errorOf, signedIn } from '../support/http';
 import { sunkMail } from '../support/mail';
 import { slot } from '../support/time';
 import { until } from '../support/until';
+import { renderRow } from '../../src/lib/server/mail/render';
 
 afterAll(closeTestDb);
 
@@ -276,7 +277,7 @@ describe('the outbox and the mail sink', () => {
 			.from(outbox)
 			.where(eq(outbox.dedupeKey, `booking:${ids[0]}:cancelled:1`));
 		expect(row.icsMethod).toBe('CANCEL');
-		const calendar = new ICAL.Component(ICAL.parse(row.icsBody!));
+		const calendar = new ICAL.Component(ICAL.parse(renderRow(row).ics!));
 		expect(calendar.getFirstPropertyValue('method')).toBe('CANCEL');
 		const event = new ICAL.Event(calendar.getFirstSubcomponent('vevent')!);
 		expect(event.uid).toBe(`booking-${ids[0]}@boxwright`);
@@ -385,7 +386,9 @@ describe('rebooking after an outage', () => {
 			.select()
 			.from(outbox)
 			.where(eq(outbox.dedupeKey, `booking:${booking.id}:cancelled:1`));
-		expect(queued.textBody).toContain('Free slots of the same length you could take instead:');
+		expect(renderRow(queued).text).toContain(
+			'Free slots of the same length you could take instead:'
+		);
 
 		const page = await (await client.get('/bookings')).text();
 		expect(page).toContain('was cancelled for upkeep');

@@ -13,6 +13,7 @@ import {
 import { certify, closeTestDb, makeBox, makeModule, makeUser, testDb } from '../support/db';
 import { Client, errorOf, signedIn } from '../support/http';
 import { slot } from '../support/time';
+import { renderRow } from '../../src/lib/server/mail/render';
 
 afterAll(closeTestDb);
 
@@ -69,7 +70,7 @@ describe('from newcomer to first booking', () => {
 			.from(outbox)
 			.where(eq(outbox.dedupeKey, `training-request:${request.id}:to:${trainerUser.id}`));
 		expect(mail).toHaveLength(1);
-		expect(mail[0].textBody).toContain('/manage/training#requests');
+		expect(renderRow(mail[0]).text).toContain('/manage/training#requests');
 
 		const listed = await trainer.get('/api/training/requests');
 		expect(listed.status).toBe(200);

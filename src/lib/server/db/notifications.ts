@@ -3,6 +3,7 @@ import {
 	datetime,
 	index,
 	int,
+	longtext,
 	mediumtext,
 	mysqlEnum,
 	mysqlTable,
@@ -27,11 +28,19 @@ export const outbox = mysqlTable(
 		toAddress: varchar({ length: 254 }).notNull(),
 		kind: varchar({ length: 40 }).notNull(),
 		subject: varchar({ length: 200 }).notNull(),
-		textBody: text().notNull(),
-		htmlBody: mediumtext().notNull(),
+		/**
+		 * The message's body as rendered: only rows queued before messages were rendered at
+		 * send time hold it; newer rows hold `template` and `data` instead.
+		 */
+		textBody: text(),
+		htmlBody: mediumtext(),
 		/** iCalendar METHOD of the attachment (REQUEST, CANCEL), when there is one. */
 		icsMethod: varchar({ length: 10 }),
 		icsBody: mediumtext(),
+		/** Which message (mail/messages.ts) the worker renders when it sends this row. */
+		template: varchar({ length: 40 }),
+		/** What the message needs, as JSON (the template's data): rendered by the worker. */
+		data: longtext(),
 		/** Unique per message meant, so the same change never queues two messages. */
 		dedupeKey: varchar({ length: 191 }).notNull().unique(),
 		status: mysqlEnum(outboxStatuses).notNull().default('pending'),

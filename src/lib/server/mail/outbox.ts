@@ -2,7 +2,7 @@ import type { Database } from '../db/connect';
 import type { Transaction } from '../db';
 import { notifications, outbox } from '../db/schema';
 import { currentRequestId } from '../observability';
-import type { Message } from './messages';
+import { icsMethodOf, type Message } from './messages';
 
 type Recipient = { id: number; email: string };
 
@@ -44,10 +44,10 @@ export async function enqueueMany(tx: Database | Transaction, items: Outgoing[])
 					toAddress: to.email,
 					kind: message.kind,
 					subject: message.subject,
-					textBody: message.text,
-					htmlBody: message.html,
-					icsMethod: message.icsMethod ?? null,
-					icsBody: message.ics ?? null,
+					// The worker renders the bodies from these when it sends (mail/render.ts).
+					template: message.template,
+					data: message.data,
+					icsMethod: icsMethodOf(message.template),
 					dedupeKey,
 					requestId
 				}))

@@ -3,10 +3,11 @@
 // notice together, so the two always say the same.
 import { formatDate } from '$lib/domain/time';
 import { config } from '../config';
-import { escape, html, type Message } from './messages';
+import { draft, type Message } from './messages';
 
 export type Notice = { message: Message; inApp: { title: string; body: string; link: string } };
 
+/** The e-mail keeps the in-app notice's paragraphs, so the worker renders the same words. */
 function notice(
 	kind: string,
 	to: string,
@@ -15,20 +16,9 @@ function notice(
 	link: string,
 	linkText: string
 ): Notice {
-	const url = `${config.origin}${link}`;
-	const body = paragraphs.join(' ');
 	return {
-		message: {
-			kind,
-			subject: title,
-			text: [`Hello ${to},`, ...paragraphs, `${linkText}: ${url}`].join('\n\n'),
-			html: html([
-				`Hello ${escape(to)},`,
-				...paragraphs.map(escape),
-				`<a href="${escape(url)}">${escape(linkText)}</a> · questions to ${escape(config.facilityContact)}`
-			])
-		},
-		inApp: { title, body, link }
+		message: draft('notice', kind, title, { to, paragraphs, link, linkText }),
+		inApp: { title, body: paragraphs.join(' '), link }
 	};
 }
 

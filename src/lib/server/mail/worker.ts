@@ -10,6 +10,7 @@ import { db } from '../db';
 import { transaction } from '../db/transaction';
 import { outbox } from '../db/schema';
 import { logger, outboxSends } from '../observability';
+import { renderRow } from './render';
 
 export const MAX_ATTEMPTS = config.outboxMaxAttempts;
 /** A 'sending' row older than this belonged to a worker that died; it is retried. */
@@ -77,15 +78,17 @@ export async function drainOnce(limit = 40): Promise<{ sent: number; failed: num
 	const results = await Promise.all(
 		rows.map(async (row) => {
 			try {
+				// Rendered here, not when queued; a row that cannot be is a failed attempt too.
+				const body = renderRow(row);
 				await transport().sendMail({
 					from: config.mailFrom,
 					to: row.toAddress,
 					subject: row.subject,
-					text: row.textBody,
-					html: row.htmlBody,
+					text: body.text,
+					html: body.html,
 					messageId: `<outbox-${row.id}.${row.dedupeKey.replace(/[^a-zA-Z0-9.-]/g, '-')}@boxwright>`,
-					icalEvent: row.icsBody
-						? { method: row.icsMethod ?? 'REQUEST', content: row.icsBody, filename: 'booking.ics' }
+					icalEvent: body.ics
+						? { method: body.icsMethod ?? 'REQUEST', content: body.ics, filename: 'booking.ics' }
 						: undefined
 				});
 				await db
