@@ -126,12 +126,14 @@ describe('POST /api/bookings answers exactly as before', () => {
 			'atmosphere_alarm'
 		);
 
-		const { boxId, client } = await setting({
+		const { boxId, client, names } = await setting({
 			weeklyQuotaMin: 90,
 			excludedClasses: ['mercury', 'phosphines']
 		});
 		const past = { boxId, start: '2020-03-02T10:00:00+01:00', end: '2020-03-02T11:00:00+01:00' };
-		expect(await answer(client, { ...past, purpose: 'Past' })).toMatchSnapshot('start_in_past');
+		expect(await answer(client, { ...past, purpose: 'Past' }, names)).toMatchSnapshot(
+			'start_in_past'
+		);
 		const near = await setting({ horizonDays: 14 });
 		expect(await answer(near.client, request(near.boxId, 4, '10:00', '11:00'))).toMatchSnapshot(
 			'outside_horizon'
