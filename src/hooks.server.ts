@@ -1,4 +1,4 @@
-import type { Handle, HandleServerError, ServerInit } from '@sveltejs/kit';
+import type { Handle, HandleServerError, RequestEvent, ServerInit } from '@sveltejs/kit';
 import { sequence } from '@sveltejs/kit/hooks';
 import { building } from '$app/environment';
 import { readSession } from '$lib/server/auth';
@@ -17,7 +17,20 @@ import { logRequestError, observe } from '$lib/server/observability';
 const isApi = (path: string) =>
 	path.startsWith('/api/') || path.startsWith('/ical/') || path.startsWith('/documents/');
 
+/**
+ * Routes that check the session themselves, inside their own first database round trip:
+ * POST /api/bookings, whose booking decision reads it under the box lock with everything
+ * else (services/booking-decision.ts). Until they do, nobody is signed in.
+ */
+const checksItsOwnSession = (event: RequestEvent) =>
+	event.request.method === 'POST' && event.route.id === '/api/bookings';
+
 const session: Handle = async ({ event, resolve }) => {
+	if (checksItsOwnSession(event)) {
+		event.locals.user = null;
+		event.locals.session = null;
+		return resolve(event);
+	}
 	const { user, session } = await readSession(event.cookies);
 	event.locals.user = user;
 	event.locals.session = session;

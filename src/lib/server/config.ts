@@ -170,7 +170,8 @@ const variables = storageVariables.extend({
 	READY_OUTBOX_AGE_SECONDS: whole(1).default(600),
 	READY_DB_MS: whole(1).default(1000),
 	READY_SCHEDULER_LATE_MS: millis().optional(),
-	COUNT_STATEMENTS: yesNo().default(false)
+	COUNT_STATEMENTS: yesNo().default(false),
+	BENCH_FLOOR: yesNo().default(false)
 });
 
 /** An empty or blank variable (`X=` in a .env file) counts as unset. */
@@ -298,6 +299,11 @@ export function parseSettings(env: Env) {
 		 * (server/count-statements.ts); off, nothing is counted.
 		 */
 		countStatements: e.COUNT_STATEMENTS,
+		/**
+		 * Benchmarks only (bench:booking): POST /api/bench/floor answers a signed-in member's
+		 * 409 without the database, the framework-plus-session floor; off, it is a 404.
+		 */
+		benchFloor: e.BENCH_FLOOR,
 		storage: storageSettings(env)
 	};
 }

@@ -10,7 +10,12 @@ export class ServiceError extends Error {
 		/** A code of the API contract more precise than the status's own (`month_not_over`). */
 		readonly code?: string
 	) {
+		// A refusal is an answer, not a fault: nobody reads its stack, and capturing one cost
+		// about 40 µs for each refused booking (bench:booking's profile), so none is taken.
+		const limit = Error.stackTraceLimit;
+		Error.stackTraceLimit = 0;
 		super(message);
+		Error.stackTraceLimit = limit;
 	}
 }
 

@@ -13,11 +13,16 @@ function isApi(event: GuardEvent): boolean {
 	return event.url.pathname.startsWith('/api/');
 }
 
+/** The API's answer to a request without a valid session. */
+export function notSignedIn(): never {
+	fail(401, 'Sign in first.', undefined, 'unauthenticated');
+}
+
 /** The signed-in user, or 401 (API) / a redirect to sign-in (pages). */
 export function requireUser(event: GuardEvent) {
 	const user = event.locals.user;
 	if (user) return user;
-	if (isApi(event)) fail(401, 'Sign in first.', undefined, 'unauthenticated');
+	if (isApi(event)) notSignedIn();
 	const next = event.url.pathname + event.url.search;
 	redirect(303, `/signin?next=${encodeURIComponent(next)}`);
 }

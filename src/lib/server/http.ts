@@ -38,17 +38,22 @@ export function fail(
 	error(status, { code, message, details });
 }
 
-/** The contract's error as a response, for a route outside /api/ that answers a client. */
+/** Answers already in the contract's shape, which shapeApiError passes on untouched. */
+const inShape = new WeakSet<Response>();
+
+/** The contract's error as a response (an API route's refusal, or a route outside /api/). */
 export function errorResponse(
 	status: number,
 	message: string,
 	code = codeFor(status),
 	details?: unknown
 ): Response {
-	return json(
+	const response = json(
 		{ error: { code, message, ...(details === undefined ? {} : { details }) } },
 		{ status }
 	);
+	inShape.add(response);
+	return response;
 }
 
 export function invalidInput(
@@ -76,7 +81,9 @@ export async function readJson<S extends z.ZodType>(
 
 /** Rewrites any error response of an API route into the contract's shape. */
 export async function shapeApiError(response: Response): Promise<Response> {
-	if (response.status < 400) return response;
+	// A refusal built by errorResponse (api.ts respond) is answered as it is: no copy of the
+	// body and no second parse, which every refused booking paid before.
+	if (response.status < 400 || inShape.has(response)) return response;
 	const type = response.headers.get('content-type') ?? '';
 	let body: { code?: string; message?: string; details?: unknown; error?: unknown } = {};
 	if (type.includes('application/json'))

@@ -96,7 +96,7 @@ const TRANSIENT_CODES = new Set([
 	'EPIPE'
 ]);
 
-function isTransient(error: unknown) {
+export function isTransient(error: unknown) {
 	let err = error as
 		{ errno?: number; code?: string; fatal?: boolean; cause?: unknown } | undefined;
 	for (let depth = 0; err && typeof err === 'object' && depth < 4; depth++) {

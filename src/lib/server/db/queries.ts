@@ -57,20 +57,21 @@ type RawBox = {
 	excluded_classes: string | string[];
 };
 
-const BOX_RULE_COLUMNS =
-	'id, name, room, status, atmosphere_state, slot_step_min, min_length_min, max_length_min, horizon_days, weekly_quota_min, purge_min, needs_approval, excluded_classes';
-
 type NearRow = {
 	src: 'other' | 'mine' | 'outage';
 	id: number;
-	start_at: string;
-	end_at: string;
-	blocked_until: string;
+	start_at: string | Date;
+	end_at: string | Date;
+	blocked_until: string | Date;
 	status: string;
 };
 
-/** Raw queries through drizzle get DATETIME as "YYYY-MM-DD hh:mm:ss" text, in UTC. */
-const utc = (value: string) => new Date(`${value.replace(' ', 'T')}Z`);
+/**
+ * DATETIME as it arrives: raw queries through drizzle get "YYYY-MM-DD hh:mm:ss" text in UTC,
+ * the core pool (db/raw.ts) gets a Date.
+ */
+const utc = (value: string | Date) =>
+	value instanceof Date ? value : new Date(`${value.replace(' ', 'T')}Z`);
 
 function ruleBox(r: RawBox) {
 	return {
@@ -105,51 +106,94 @@ export type BookingRequestRead = {
 	ignoreBookingId?: number;
 };
 
+/** A list of fixed words (statuses) as SQL text: constants of the domain, never input. */
+const words = (list: readonly string[]) => list.map((w) => `'${w.replace(/'/g, "''")}'`).join(', ');
+
 /**
- * Locks the box row, then reads in the same round trip what the lock protects for a booking
- * request: the box's rules, open bookings whose hold reaches the request or that start
- * within the longest purge after it, the user's held bookings in the quota span, and the
- * outages that near. A superset: the box's own purge time is only known once its row is
- * in hand, so checkBooking decides what collides. Each booking branch is a range scan on
- * (box_id, start_at) with a lower bound, so the box's history is never read whole. Null
- * when there is no such box.
- *
- * The lock is lockBox's (db/locks.ts): a write to the box row, which a Galera cluster
- * certifies, so two nodes cannot both book one slot; it opens the batch, and so the
- * transaction, and the reads after it see everything committed before it was granted.
+ * The booking check's lock: a write to the box row (db/locks.ts), which a Galera cluster
+ * certifies, so two nodes cannot both book one slot. It must be the transaction's first
+ * statement that reads: the reads after it see everything committed before it was granted.
  */
-export async function lockBoxForBooking(tx: Transaction, q: BookingRequestRead) {
+export const LOCK_SQL = 'UPDATE boxes SET lock_version = lock_version + 1 WHERE id = ?';
+
+/**
+ * What the lock protects, as text with `?` placeholders (values from nearValues), for the
+ * person in the session variable @user: the box's rules read with FOR UPDATE, then open
+ * bookings whose hold reaches the request or that start within the longest purge after it,
+ * the person's held bookings in the quota span, and the outages that near. A superset: the
+ * box's own purge time is only known once its row is in hand, so checkBooking decides what
+ * collides. Each booking branch is a range scan on (box_id, start_at) with a lower bound
+ * (startsFrom), so the box's history is never read whole. Written once for the booking
+ * decision (services/booking-decision.ts), which sends it with the gates in its first
+ * batch, and for a move (lockBoxForBooking).
+ */
+export const NEAR_SQL = `SELECT id, name, room, status, atmosphere_state, slot_step_min,
+	min_length_min, max_length_min, horizon_days, weekly_quota_min, purge_min, needs_approval,
+	excluded_classes FROM boxes WHERE id = ? FOR UPDATE;
+SELECT 'other' AS src, id, start_at, end_at, blocked_until, status FROM bookings
+	WHERE box_id = ? AND status IN (${words(openStatuses)}) AND id <> ?
+	AND start_at < ? AND blocked_until > ? AND start_at >= ?
+UNION ALL
+SELECT 'mine', id, start_at, end_at, blocked_until, status FROM bookings
+	WHERE box_id = ? AND user_id = @user AND id <> ? AND status IN (${words(holdingStatuses)})
+	AND start_at < ? AND end_at > ? AND start_at >= ?
+UNION ALL
+SELECT 'outage', id, start_at, end_at, end_at, reason FROM outages
+	WHERE box_id = ? AND start_at < ? AND end_at > ?`;
+
+/** The values of NEAR_SQL's placeholders, in order. */
+export function nearValues(q: Omit<BookingRequestRead, 'userId'>): unknown[] {
 	const ignore = q.ignoreBookingId ?? 0;
 	const purgeBound = new Date(q.end.getTime() + LONGEST_PURGE_MS);
-	const [[, lockedRows, rows]] = (await tx.execute(sql`
-		UPDATE boxes SET lock_version = lock_version + 1 WHERE id = ${q.boxId};
-		SELECT ${sql.raw(BOX_RULE_COLUMNS)} FROM boxes WHERE id = ${q.boxId} FOR UPDATE;
-		SELECT 'other' AS src, id, start_at, end_at, blocked_until, status FROM bookings
-		WHERE box_id = ${q.boxId} AND ${inArray(bookings.status, openStatuses)} AND id <> ${ignore}
-			AND start_at < ${purgeBound} AND blocked_until > ${q.start} AND ${startsFrom(q.start)}
-		UNION ALL
-		SELECT 'mine', id, start_at, end_at, blocked_until, status FROM bookings
-		WHERE box_id = ${q.boxId} AND user_id = ${q.userId} AND id <> ${ignore}
-			AND ${inArray(bookings.status, holdingStatuses)} AND start_at < ${q.quota.end}
-			AND end_at > ${q.quota.start} AND ${startsFrom(q.quota.start)}
-		UNION ALL
-		SELECT 'outage', id, start_at, end_at, end_at, reason FROM outages
-		WHERE box_id = ${q.boxId} AND start_at < ${purgeBound} AND end_at > ${q.start}
-	`)) as unknown as [[unknown, RawBox[], NearRow[]]];
-	if (!lockedRows.length) return null;
+	const from = (at: Date) => new Date(at.getTime() - LONGEST_HOLD_MS);
+	return [
+		q.boxId,
+		...[q.boxId, ignore, purgeBound, q.start, from(q.start)],
+		...[q.boxId, ignore, q.quota.end, q.quota.start, from(q.quota.start)],
+		...[q.boxId, purgeBound, q.start]
+	];
+}
+
+/** NEAR_SQL's answers (its box's rows, its near rows), as checkBooking takes them. */
+export function readNear([lockedRows, rows]: unknown[]) {
+	const box = (lockedRows as RawBox[])[0];
+	if (!box) return null;
+	const near = rows as NearRow[];
 	const span = (r: NearRow): Span => ({ startAt: utc(r.start_at), endAt: utc(r.end_at) });
-	const near = (src: NearRow['src']) => rows.filter((r) => r.src === src);
+	const of = (src: NearRow['src']) => near.filter((r) => r.src === src);
 	return {
-		box: ruleBox(lockedRows[0]),
-		others: near('other').map((r): HeldBooking => ({
+		box: ruleBox(box),
+		others: of('other').map((r): HeldBooking => ({
 			id: r.id,
 			...span(r),
 			blockedUntil: utc(r.blocked_until),
 			status: r.status as BookingStatus
 		})),
-		outages: near('outage').map((r): OutageSpan => ({ id: r.id, ...span(r), reason: r.status })),
-		userBookings: near('mine').map(span)
+		outages: of('outage').map((r): OutageSpan => ({ id: r.id, ...span(r), reason: r.status })),
+		userBookings: of('mine').map(span)
 	};
+}
+
+/** `?`-placeholder text and its values as drizzle SQL, for text shared with the raw path. */
+function withValues(text: string, values: unknown[]): SQL {
+	const parts = text.split('?');
+	if (parts.length !== values.length + 1) throw new Error('placeholders and values differ');
+	return sql.join(
+		parts.flatMap((part, i) =>
+			i < values.length ? [sql.raw(part), sql`${values[i]}`] : [sql.raw(part)]
+		)
+	);
+}
+
+/**
+ * The lock and NEAR_SQL in a drizzle transaction, in one round trip: for a move
+ * (services/bookings.ts changeBooking). Null when there is no such box.
+ */
+export async function lockBoxForBooking(tx: Transaction, q: BookingRequestRead) {
+	const text = `${LOCK_SQL};\nSET @user = ?;\n${NEAR_SQL}`;
+	const values = [q.boxId, q.userId, ...nearValues(q)];
+	const [results] = (await tx.execute(withValues(text, values))) as unknown as [unknown[]];
+	return readNear(results.slice(2));
 }
 
 /**

@@ -41,3 +41,12 @@ export function withStatementTally<T>(fn: () => T): { result: T; count: () => nu
 	const mine: Tally = { statements: 0 };
 	return { result: tally.run(mine, fn), count: () => mine.statements };
 }
+
+/**
+ * Counts one statement for the current request's tally, for code that talks to mysql2's
+ * core pool directly (db/raw.ts). Without a tally (COUNT_STATEMENTS off) it does nothing.
+ */
+export function noteStatement() {
+	const current = tally.getStore();
+	if (current) current.statements++;
+}

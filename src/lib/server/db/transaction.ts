@@ -6,9 +6,11 @@
 // after a short random pause, up to DB_TX_ATTEMPTS times (retry.ts says exactly when).
 import { config } from '../config';
 import { pool, type Transaction } from './index';
-import { runTransaction } from './retry';
+import { take } from './raw';
+import { runBatches, runTransaction, type Batches } from './retry';
 
 export { isRetryable } from './retry';
+export type { Batches } from './retry';
 
 /** Runs `work` in a transaction; again when it was refused without writing anything. */
 export async function transaction<T>(
@@ -16,4 +18,12 @@ export async function transaction<T>(
 	attempts = config.dbTxAttempts
 ): Promise<T> {
 	return runTransaction(pool, work, { attempts });
+}
+
+/** As transaction(), for work sent as text batches on a core connection (retry.ts Batches). */
+export function batchTransaction<T>(
+	work: (tx: Batches) => Promise<T>,
+	attempts = config.dbTxAttempts
+): Promise<T> {
+	return runBatches(() => take(pool.pool), work, { attempts });
 }

@@ -1,7 +1,8 @@
-// The booking check every write to a booking's time goes through: the training gates read
-// before the lock, then the box row locked and what it protects read in one round trip
-// (lockBoxForBooking), and checkBooking deciding; the refusal in the contract's shape, and
-// the confirmation queued with the change. services/bookings.ts makes, moves and cancels.
+// The booking check of a move: the training gates read before the lock, then the box row
+// locked and what it protects read in one round trip (lockBoxForBooking), and checkBooking
+// deciding; the refusal in the contract's shape, and the confirmation queued with the
+// change. A new booking goes through booking-decision.ts, which reads the same under the
+// lock in its first batch; services/bookings.ts makes, moves and cancels.
 import { and, eq, isNull } from 'drizzle-orm';
 import { checkBooking, quotaSpan, type Reason } from '$lib/domain/booking-rules';
 import { openStatuses, type BookingStatus } from '$lib/domain/bookings';
@@ -12,7 +13,6 @@ import { db, type Transaction } from '../db';
 import { defaultGroupId, lockBoxForBooking } from '../db/queries';
 import {
 	bookings,
-	groupMemberships,
 	boxRequiredModules,
 	certifications,
 	trainingModules,
@@ -20,7 +20,6 @@ import {
 } from '../db/schema';
 import { bookingConfirmed } from '../mail/messages';
 import { enqueue } from '../mail/outbox';
-import type { Actor } from './accounts';
 import { notFound, ServiceError } from './errors';
 
 /** What does not race with other bookings: read before the box lock is taken. */
@@ -145,26 +144,6 @@ export function mustBeOpen(
 	if (b.endAt <= now) throw new ServiceError(409, 'This booking has already ended.');
 	if (b.checkOutAt)
 		throw new ServiceError(409, `This booking is checked out; it can no longer be ${what}.`);
-}
-
-/** The group billed: one the booker is an active member of, or the one they joined first. */
-export async function billedGroup(actor: Actor, input: BookingInput, gates: Gates) {
-	if (input.groupId === undefined) return gates.person?.groupId ?? null;
-	const [member] = await db
-		.select({ id: groupMemberships.id })
-		.from(groupMemberships)
-		.where(
-			and(
-				eq(groupMemberships.userId, actor.id),
-				eq(groupMemberships.groupId, input.groupId),
-				eq(groupMemberships.status, 'active')
-			)
-		);
-	if (!member)
-		throw new ServiceError(400, 'You can only bill a booking to a group you are in.', {
-			fields: { groupId: 'Choose one of your groups.' }
-		});
-	return input.groupId;
 }
 
 /** The holder's confirmation (an invitation with the booking's UID), in the caller's transaction. */

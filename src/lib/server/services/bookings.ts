@@ -2,20 +2,18 @@
 // and approving, each under the box row lock; the check itself is booking-check.ts.
 import { eq, sql } from 'drizzle-orm';
 import { missingTimeReason, refusalStatus } from '$lib/domain/booking-rules';
-import { weeklySlots, type BookingStatus } from '$lib/domain/bookings';
+import { weeklySlots } from '$lib/domain/bookings';
 import { hasRole } from '$lib/domain/roles';
 import { isoInZone } from '$lib/domain/time';
 import type { BookingChange, BookingInput } from '$lib/validation/bookings';
 import { config } from '../config';
-import { db, type Transaction } from '../db';
+import { db } from '../db';
 import { lockBox } from '../db/locks';
 import { bookings, boxes, users, type Booking } from '../db/schema';
 import { transaction } from '../db/transaction';
-import { bookingDecisions } from '../observability';
 import type { Actor } from './accounts';
 import { audit } from './audit';
 import {
-	billedGroup,
 	boxOf,
 	evaluate,
 	mustBeOpen,
@@ -23,9 +21,9 @@ import {
 	readGates,
 	reasonsForClient,
 	refusal,
-	type Gates,
 	type SeriesRefusal
 } from './booking-check';
+import { book } from './booking-decision';
 import { attempt, forbidden, notFound, ServiceError } from './errors';
 import { notifyFreedWatches } from './watches';
 
@@ -64,80 +62,13 @@ export async function getBooking(actor: Actor, id: number) {
 }
 
 /**
- * Checks and inserts one booking in the caller's transaction (evaluate locks the box row
- * first). `series`: the series it joins, 'first' for the first of a new one (its own id).
+ * Creates a booking: the booking decision (booking-decision.ts), where the box row is locked
+ * (a certified write, db/locks.ts) before anything that overlaps is read, so two requests
+ * for the same slot are serialised by MariaDB, or refused at certification on a Galera
+ * cluster and run again, and never both succeed.
  */
-async function insertBooking(
-	tx: Transaction,
-	actor: Actor,
-	input: BookingInput,
-	gates: Gates,
-	groupId: number | null,
-	now: Date,
-	series: number | 'first' | null = null
-) {
-	const { box, result } = await evaluate(tx, actor.id, input, now, gates);
-	const status = refusalStatus(result);
-	if (status) {
-		bookingDecisions.inc({ outcome: 'refused', code: result.reasons[0]?.code ?? 'unknown' });
-		throw refusal(result.reasons, status);
-	}
-
-	const values = {
-		boxId: box.id,
-		userId: actor.id,
-		groupId,
-		startAt: input.start,
-		endAt: input.end,
-		// The end of the hold the rules checked, purge included: stored, never worked out again.
-		blockedUntil: result.blockedUntil,
-		purpose: input.purpose,
-		chemicalClasses: input.chemicalClasses,
-		volatileSolvents: input.volatileSolvents,
-		status: (box.needsApproval ? 'pending' : 'confirmed') as BookingStatus,
-		confirmedAt: box.needsApproval ? null : now,
-		seriesId: typeof series === 'number' ? series : null
-	};
-	const [created] = await tx.insert(bookings).values(values).$returningId();
-	if (series === 'first') {
-		values.seriesId = created.id;
-		await tx.update(bookings).set({ seriesId: created.id }).where(eq(bookings.id, created.id));
-	}
-	await audit(tx, {
-		actorId: actor.id,
-		action: 'booking.created',
-		entity: 'booking',
-		entityId: created.id,
-		details: {
-			boxId: box.id,
-			start: input.start.toISOString(),
-			end: input.end.toISOString(),
-			status: values.status,
-			...(values.seriesId ? { seriesId: values.seriesId } : {})
-		}
-	});
-	if (values.status === 'confirmed' && gates.person?.emailConfirmations) {
-		await queueConfirmation(
-			tx,
-			{ id: actor.id, ...gates.person },
-			{ id: created.id, ...values, sequence: 0 },
-			box
-		);
-	}
-	return { id: created.id, ...values, cancelReason: null, cancelCause: null, outageId: null };
-}
-
-/**
- * Creates a booking. The box row is locked (a certified write, db/locks.ts) before anything
- * that overlaps is read, so two requests for the same slot are serialised by MariaDB, or
- * refused at certification on a Galera cluster and run again, and never both succeed.
- */
-export async function createBooking(actor: Actor, input: BookingInput, now = new Date()) {
-	const gates = await readGates(actor.id, input.boxId);
-	const groupId = await billedGroup(actor, input, gates);
-	const made = await transaction((tx) => insertBooking(tx, actor, input, gates, groupId, now));
-	bookingDecisions.inc({ outcome: 'created', code: made.status });
-	return made;
+export function createBooking(actor: Actor, input: BookingInput, now = new Date()) {
+	return book(actor, input, now);
 }
 
 /**
@@ -152,9 +83,7 @@ export async function createSeries(
 	now = new Date()
 ) {
 	const tz = config.facilityTz;
-	const gates = await readGates(actor.id, input.boxId);
-	const groupId = await billedGroup(actor, input, gates);
-	const created: Awaited<ReturnType<typeof insertBooking>>[] = [];
+	const created: Awaited<ReturnType<typeof book>>[] = [];
 	const refused: SeriesRefusal[] = [];
 	for (const slot of weeklySlots(input.start, input.end, weeks, tz)) {
 		const when = { start: isoInZone(slot.start, tz), end: isoInZone(slot.end, tz) };
@@ -163,15 +92,9 @@ export async function createSeries(
 			continue;
 		}
 		const one = { ...input, start: slot.start, end: slot.end };
-		const made = await attempt(() =>
-			transaction((tx) =>
-				insertBooking(tx, actor, one, gates, groupId, now, created[0]?.id ?? 'first')
-			)
-		);
-		if (made.ok) {
-			created.push(made.value);
-			bookingDecisions.inc({ outcome: 'created', code: made.value.status });
-		} else if (made.error.status === 409 || made.error.status === 422) {
+		const made = await attempt(() => book(actor, one, now, created[0]?.id ?? 'first'));
+		if (made.ok) created.push(made.value);
+		else if (made.error.status === 409 || made.error.status === 422) {
 			const details = made.error.details as { reasons: SeriesRefusal['reasons'] };
 			refused.push({ ...when, reasons: details.reasons });
 		} else throw made.error;
