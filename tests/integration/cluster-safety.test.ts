@@ -12,9 +12,10 @@ import { db, pool } from '../../src/lib/server/db';
 import { connect } from '../../src/lib/server/db/connect';
 import { lockBox, lockUser } from '../../src/lib/server/db/locks';
 import { lockBoxForBooking } from '../../src/lib/server/db/queries';
-import { runTransaction } from '../../src/lib/server/db/retry';
+import { take } from '../../src/lib/server/db/raw';
+import { runBatches, runTransaction } from '../../src/lib/server/db/retry';
 import { bookings, boxes, users } from '../../src/lib/server/db/schema';
-import { transaction } from '../../src/lib/server/db/transaction';
+import { batchTransaction, transaction } from '../../src/lib/server/db/transaction';
 import { ServiceError } from '../../src/lib/server/errors';
 import { closeTestDb, makeBox, makeUser, testDb } from '../support/db';
 import { until } from '../support/until';
@@ -297,5 +298,70 @@ describe('DB_SYNC_WAIT', () => {
 		} finally {
 			await Promise.all([asked.pool.end(), plain.pool.end()]);
 		}
+	});
+});
+
+describe('the batch runner of the booking decision (runBatches)', () => {
+	const bump = 'UPDATE boxes SET lock_version = lock_version + 1 WHERE id = ?';
+
+	it('runs a batch refused by certification again, keeps only the last, and gives back every connection', async () => {
+		const boxId = await makeBox();
+		const before = await lockVersionOf(boxId);
+		let runs = 0;
+		const answer = await batchTransaction(async (tx) => {
+			runs++;
+			await tx.begin(`${bump}; SELECT 1`, [boxId]);
+			if (runs < 3) throw certificationConflict();
+			const [header] = (await tx.commit(bump, [boxId])) as [{ affectedRows: number }];
+			return header.affectedRows;
+		});
+		expect([runs, answer]).toEqual([3, 1]);
+		// Each refused attempt's ROLLBACK undid its raise; the last raised it twice.
+		expect(await lockVersionOf(boxId)).toBe(before + 2);
+		await until(async () => held() === 0);
+	});
+
+	it('answers a refusal of the work at once; its ROLLBACK runs after and gives the connection back', async () => {
+		const boxId = await makeBox();
+		const before = await lockVersionOf(boxId);
+		let runs = 0;
+		await expect(
+			batchTransaction(async (tx) => {
+				runs++;
+				await tx.begin(bump, [boxId]);
+				throw new ServiceError(409, 'Someone else holds that time on the box.');
+			})
+		).rejects.toMatchObject({ status: 409 });
+		expect(runs).toBe(1);
+		await until(async () => held() === 0);
+		expect(await lockVersionOf(boxId)).toBe(before);
+	});
+
+	it('never runs again when the connection is lost during the COMMIT batch: 503, outcome unknown', async () => {
+		const boxId = await makeBox();
+		let runs = 0;
+		const source = async () => {
+			const connection = await take(pool.pool);
+			const query = connection.query.bind(connection) as (...a: unknown[]) => unknown;
+			connection.query = ((text: string, values: unknown, callback: (e: unknown) => void) =>
+				/COMMIT$/.test(text)
+					? callback(
+							Object.assign(new Error('Connection lost: The server closed the connection.'), {
+								fatal: true,
+								code: 'PROTOCOL_CONNECTION_LOST'
+							})
+						)
+					: query(text, values, callback)) as typeof connection.query;
+			return connection;
+		};
+		const error = await runBatches(source, async (tx) => {
+			runs++;
+			await tx.begin(bump, [boxId]);
+			await tx.commit('SELECT 1', []);
+		}).catch((e: unknown) => e);
+		expect(runs).toBe(1);
+		expect(error).toMatchObject({ status: 503, code: 'unavailable' });
+		expect((error as Error).message).toMatch(/may or may not have been made/);
+		await until(async () => held() === 0);
 	});
 });
