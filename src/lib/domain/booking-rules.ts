@@ -16,6 +16,7 @@ import {
 	minutesBetween,
 	msWithin
 } from './time';
+import { wallParts } from './wall-clock';
 
 export type RuleBox = {
 	status: BoxStatus;
@@ -160,7 +161,8 @@ export function quotaSpan(start: Date, end: Date, tz: string): { start: Date; en
 
 /** Is the instant on the box's slot grid, in wall-clock minutes of the facility zone? */
 function onStep(at: Date, stepMin: number, tz: string): boolean {
-	const t = local(at, tz);
+	// luxon's DateTime has the same fields, for a zone name wallParts leaves to it ('UTC').
+	const t = wallParts(at, tz) ?? local(at, tz);
 	return t.second === 0 && t.millisecond === 0 && (t.hour * 60 + t.minute) % stepMin === 0;
 }
 

@@ -1,5 +1,15 @@
 import { DateTime } from 'luxon';
+import {
+	isoWeekAt,
+	isoWeeksBetween,
+	onSameDay,
+	wallParts,
+	type IsoWeek,
+	type WallParts
+} from './wall-clock';
 import { zoneOf } from './zone';
+
+export type { IsoWeek } from './wall-clock';
 
 /**
  * The language of every date Boxwright writes out (weekday and month names), fixed so that
@@ -54,38 +64,96 @@ export function fromLocal(date: string, typed: string, tz: string): Date | null 
 	return dt.toJSDate();
 }
 
+// The helpers below write dates from wallParts (wall-clock.ts), exactly as luxon's toFormat and
+// toISO would, and ask luxon itself only where wallParts cannot answer (a zone name such as 'UTC').
+
+let shortNames: { weekdays: string[]; months: string[] } | undefined;
+
+/**
+ * Short weekday and month names ("Mon", "Jan") as luxon writes 'ccc' and 'LLL' in
+ * FACILITY_LOCALE on this runtime (its en-GB may say "Sept"): asked of luxon once, on first use.
+ */
+function names() {
+	const inLocale = (year: number, month: number, day: number, format: string) =>
+		DateTime.utc(year, month, day).setLocale(FACILITY_LOCALE).toFormat(format);
+	// 1 January 2024 was a Monday.
+	shortNames ??= {
+		weekdays: Array.from({ length: 7 }, (_, k) => inLocale(2024, 1, 1 + k, 'ccc')),
+		months: Array.from({ length: 12 }, (_, k) => inLocale(2024, k + 1, 15, 'LLL'))
+	};
+	return shortNames;
+}
+
+const pad = (n: number, width = 2) => String(n).padStart(width, '0');
+/** 'HH:mm'. */
+const hourMinute = (p: WallParts) => `${pad(p.hour)}:${pad(p.minute)}`;
+/** toISODate(): wallParts' years have four digits. */
+const isoDate = (p: WallParts) => `${p.year}-${pad(p.month)}-${pad(p.day)}`;
+
+/** 'ccc d LLL': "Tue 1 Dec". */
+function dayAndMonth(p: WallParts): string {
+	const { weekdays, months } = names();
+	return `${weekdays[p.weekday - 1]} ${p.day} ${months[p.month - 1]}`;
+}
+
 /** The date (YYYY-MM-DD) and time (HH:mm) an instant shows on the facility's clock: fromLocal's inverse. */
 export function toLocalParts(at: Date, tz: string): { date: string; time: string } {
+	const p = wallParts(at, tz);
+	if (p) return { date: isoDate(p), time: hourMinute(p) };
 	const l = local(at, tz);
 	return { date: l.toISODate()!, time: l.toFormat('HH:mm') };
 }
 
 /** ISO 8601 with the facility zone's offset, e.g. 2026-12-01T09:00:00.000+01:00. */
 export function isoInZone(at: Date, tz: string): string {
-	return local(at, tz).toISO()!;
+	const p = wallParts(at, tz);
+	if (!p) return local(at, tz).toISO()!;
+	// As luxon writes an IANA zone's offset: always ±HH:mm, "+00:00" and never "Z".
+	const o = Math.abs(p.offsetMinutes);
+	const offset = `${p.offsetMinutes < 0 ? '-' : '+'}${pad(Math.trunc(o / 60))}:${pad(o % 60)}`;
+	const time = `${hourMinute(p)}:${pad(p.second)}.${pad(p.millisecond, 3)}`;
+	return `${isoDate(p)}T${time}${offset}`;
 }
 
 /** "Tue 1 Dec, 09:00" in the facility zone. */
 export function formatDateTime(at: Date, tz: string): string {
-	return local(at, tz).toFormat('ccc d LLL, HH:mm');
+	const p = wallParts(at, tz);
+	return p ? `${dayAndMonth(p)}, ${hourMinute(p)}` : local(at, tz).toFormat('ccc d LLL, HH:mm');
 }
 
 /** As formatDateTime, with the year when it is not this year's: "Tue 1 Jun 2027, 10:00". */
 export function formatWhen(at: Date, tz: string, now = new Date()): string {
+	const p = wallParts(at, tz);
+	const today = wallParts(now, tz);
+	if (p && today) {
+		const year = p.year === today.year ? '' : ` ${p.year}`;
+		return `${dayAndMonth(p)}${year}, ${hourMinute(p)}`;
+	}
 	const l = local(at, tz);
 	return l.toFormat(l.year === local(now, tz).year ? 'ccc d LLL, HH:mm' : 'ccc d LLL yyyy, HH:mm');
 }
 
 export function formatTime(at: Date, tz: string): string {
-	return local(at, tz).toFormat('HH:mm');
+	const p = wallParts(at, tz);
+	return p ? hourMinute(p) : local(at, tz).toFormat('HH:mm');
 }
 
 export function formatDate(at: Date, tz: string): string {
-	return local(at, tz).toFormat('ccc d LLL yyyy');
+	const p = wallParts(at, tz);
+	return p ? `${dayAndMonth(p)} ${p.year}` : local(at, tz).toFormat('ccc d LLL yyyy');
 }
 
 /** "Tue 1 Dec, 09:00–11:30" (or across days, both dates). */
 export function formatRange(start: Date, end: Date, tz: string): string {
+	const a = wallParts(start, tz);
+	const b = wallParts(end, tz);
+	const sameDay = a && b ? onSameDay(start, end, tz) : null;
+	if (!a || !b || sameDay === null) return formatRangeByLuxon(start, end, tz);
+	const from = `${dayAndMonth(a)}, ${hourMinute(a)}`;
+	return sameDay ? `${from}–${hourMinute(b)}` : `${from} – ${dayAndMonth(b)}, ${hourMinute(b)}`;
+}
+
+function formatRangeByLuxon(start: Date, end: Date, tz: string): string {
 	const a = local(start, tz);
 	const b = local(end, tz);
 	if (a.hasSame(b, 'day')) return `${a.toFormat('ccc d LLL, HH:mm')}–${b.toFormat('HH:mm')}`;
@@ -121,18 +189,6 @@ export function currentOffset(tz: string, at = new Date()): string {
 	return DateTime.fromJSDate(at).setZone(zoneOf(tz)).toFormat('ZZ');
 }
 
-/** An ISO week (Monday 00:00 to the next Monday 00:00) on the facility's wall clock. */
-export type IsoWeek = {
-	/** "2026-W13": the ISO week year, which differs from the calendar year around New Year. */
-	key: string;
-	/** Monday 00:00 in the zone, as an instant. */
-	start: Date;
-	/** The next Monday 00:00. */
-	end: Date;
-	/** Real hours in the week: 168, or 167 / 169 in a week with a daylight-saving change. */
-	hours: number;
-};
-
 /** Monday 00:00 (facility zone) of the ISO week that holds `at`. */
 export function isoWeekStart(at: Date, tz: string): DateTime {
 	const dt = local(at, tz);
@@ -153,11 +209,15 @@ function isoWeekFrom(start: DateTime): IsoWeek {
 
 /** The ISO week (facility zone) that holds the instant `at`. */
 export function isoWeekOf(at: Date, tz: string): IsoWeek {
-	return isoWeekFrom(isoWeekStart(at, tz));
+	return isoWeekAt(at, tz) ?? isoWeekFrom(isoWeekStart(at, tz));
 }
 
 /** The ISO weeks (facility zone) that [from, to) touches, in order, whole; none when empty. */
 export function isoWeeksCovering(from: Date, to: Date, tz: string): IsoWeek[] {
+	return isoWeeksBetween(from, to, tz) ?? isoWeeksByLuxon(from, to, tz);
+}
+
+function isoWeeksByLuxon(from: Date, to: Date, tz: string): IsoWeek[] {
 	const weeks: IsoWeek[] = [];
 	for (let start = isoWeekStart(from, tz); start.toMillis() < to.getTime();) {
 		const week = isoWeekFrom(start);

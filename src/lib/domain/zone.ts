@@ -51,3 +51,12 @@ export function zoneOf(tz: string): Zone {
 	zones.set(tz, zone);
 	return zone;
 }
+
+/**
+ * zoneOf's remembered IANA zone for `tz`, or null when luxon reads `tz` as anything else:
+ * for those ('UTC' prints "Z", an unknown name is invalid) callers keep to luxon itself.
+ */
+export function rememberedZoneOf(tz: string): IANAZone | null {
+	const zone = zoneOf(tz);
+	return zone instanceof HourlyOffsetZone ? zone : null;
+}
