@@ -287,12 +287,27 @@ export class Batches {
 	open = false;
 	constructor(private readonly connection: CoreConnection) {}
 
-	/** START TRANSACTION, then `text`; the answers of `text`'s statements. */
-	async begin(text: string, values: unknown[]): Promise<unknown[]> {
+	/**
+	 * START TRANSACTION, then `text`; the answers of `text`'s statements. `before`: plain
+	 * reads sent ahead of START TRANSACTION in the same round trip, outside the transaction
+	 * (so they neither fix its snapshot nor lengthen its locks); their answers come first.
+	 */
+	async begin(
+		text: string,
+		values: unknown[],
+		before?: { text: string; values: unknown[] }
+	): Promise<unknown[]> {
 		this.open = true;
-		const results = await send<unknown[]>(this.connection, `START TRANSACTION;\n${text}`, values);
+		const lead = before ? `${before.text};\n` : '';
+		const results = await send<unknown[]>(
+			this.connection,
+			`${lead}START TRANSACTION;\n${text}`,
+			before ? [...before.values, ...values] : values
+		);
 		this.phase = 'work';
-		return results.slice(1);
+		if (!before) return results.slice(1);
+		const ahead = statementCount(before.text);
+		return [...results.slice(0, ahead), ...results.slice(ahead + 1)];
 	}
 
 	/** `text`, then COMMIT; the answers of `text`'s statements. */
@@ -303,6 +318,9 @@ export class Batches {
 		return results.slice(0, -1);
 	}
 }
+
+/** Statements in a batch's text: its `;` separators (none inside the texts sent here). */
+const statementCount = (text: string) => text.split(';').length;
 
 /** Where runBatches takes its connections: the core pool (raw.ts take), or a test's. */
 export type BatchSource = () => Promise<CoreConnection>;

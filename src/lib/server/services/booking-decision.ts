@@ -4,27 +4,32 @@
 // in text SQL on the core pool (db/raw.ts: no query building, no stack capture). Every rule it
 // applies is checkBooking's (domain/booking-rules.ts), the same function a move goes through.
 //
-//   trip 1  START TRANSACTION; the box row locked (a certified write, db/locks.ts); then,
-//           under the lock: the box's rules, the holds near the request, the person's gates
-//           (the box's required modules joined to their certifications; their e-mail
-//           settings; the group billed).
-//           A refusal is answered now; its ROLLBACK runs while the answer goes out.
+//   trip 1  first, outside the transaction, the gates, which do not race with other bookings:
+//           who books (the request's session, when the route leaves its check to this
+//           module), the box's required modules joined to their certifications, their
+//           e-mail setting and the group billed; then START TRANSACTION, the box row locked
+//           (a certified write, db/locks.ts) and, under the lock, the box's rules and the
+//           holds near the request (db/queries.ts NEAR_SQL). A refusal is answered now; its
+//           ROLLBACK runs while the answer goes out.
 //   trip 2  the booking, its audit entry and its confirmation's outbox row, then COMMIT.
 //
 // The lock must stay the transaction's first statement. InnoDB fixes a transaction's snapshot
 // at its first plain read: a read placed before the lock would leave every later read blind to
 // a booking committed while the lock was awaited, and two bookings for one slot could both be
-// made. On a Galera cluster the lock is a write, so two nodes deciding on one box conflict at
-// certification and one decision runs again (db/retry.ts runBatches, DB_TX_ATTEMPTS).
+// made. The gates ahead of START TRANSACTION are statements of their own (autocommit), not
+// reads of the transaction. On a Galera cluster the lock is a write, so two nodes deciding on
+// one box conflict at certification and one decision runs again (db/retry.ts runBatches,
+// DB_TX_ATTEMPTS).
 //
 // Figures behind the shape (bench:booking on this 2-core machine, 20 connections, against a
 // bare node:http + mysql2 endpoint doing BEGIN, lock, overlap read, ROLLBACK or INSERT+COMMIT):
 // before this module a taken slot ran at 0.20 of bare and a free one at 0.16, over 5 and 8
-// sequential trips (gates on three connections, BEGIN, lock+reads, inserts one by one,
-// ROLLBACK or COMMIT), with drizzle's query building 13–19 % of the CPU and the confirmation
-// rendered under the lock (12.5 %). The figures after are in DEVELOPERS.md ("The booking
-// decision"). One text batch beat the same statements as prepared `execute()` calls, so
-// nothing here is prepared; no stored procedure either: two trips is what a bare client makes.
+// sequential trips (the session check, gates on three connections, BEGIN, lock and reads,
+// inserts one by one, ROLLBACK or COMMIT), with drizzle's query building 13–19 % of the CPU
+// and the confirmation rendered under the lock (12.5 %). Each step and its figure is in
+// DEVELOPERS.md ("The booking decision"). One text batch beat the same statements as prepared
+// `execute()` calls, so nothing here is prepared; no stored procedure either: two trips is
+// what a bare client makes.
 import { checkBooking, quotaSpan, refusalStatus } from '$lib/domain/booking-rules';
 import type { BookingStatus } from '$lib/domain/bookings';
 import type { BookingInput } from '$lib/validation/bookings';
@@ -39,10 +44,10 @@ import { refusal } from './booking-check';
 import { ServiceError } from './errors';
 
 /**
- * Who books, as the session variable @user: a person already known (a form action, a
- * series), or the one whose session the request carries: then the session check of the
- * request is this read, under the lock, instead of a round trip of its own before it
- * (SessionCheck, auth.ts; figures in DEVELOPERS.md). A plain read, so it comes after the lock.
+ * Who books, as the session variable @user (NEAR_SQL and the gates read it): a person
+ * already known (a form action, a series), or the one whose session the request carries;
+ * then this read is the request's session check (SessionCheck, auth.ts), in the decision's
+ * first round trip instead of one of its own before it.
  */
 const WHO_SQL = {
 	actor: 'SET @user = ?',
@@ -113,23 +118,31 @@ export async function book(
 	const tz = config.facilityTz;
 	const bySession = booker instanceof SessionCheck;
 	const made = await batchTransaction(async (tx) => {
+		// The gates go ahead of START TRANSACTION in the same round trip: they do not race
+		// with other bookings, and read outside the transaction they neither fix its snapshot
+		// nor hold the box lock longer (everyone queues on that lock for a popular box).
 		const read = await tx.begin(
-			[LOCK_SQL, bySession ? WHO_SQL.session : WHO_SQL.actor, NEAR_SQL, GATES_SQL].join(';\n'),
+			[LOCK_SQL, NEAR_SQL].join(';\n'),
 			[
 				input.boxId,
-				bySession ? booker.sessionId : booker.id,
 				...nearValues({
 					boxId: input.boxId,
 					start: input.start,
 					end: input.end,
 					quota: quotaSpan(input.start, input.end, tz)
-				}),
-				input.boxId,
-				input.groupId ?? null,
-				bySession ? booker.sessionId : null
-			]
+				})
+			],
+			{
+				text: [bySession ? WHO_SQL.session : WHO_SQL.actor, GATES_SQL].join(';\n'),
+				values: [
+					bySession ? booker.sessionId : booker.id,
+					input.boxId,
+					input.groupId ?? null,
+					bySession ? booker.sessionId : null
+				]
+			}
 		);
-		const [moduleRows, [person]] = read.slice(4) as [ModuleRow[], PersonRow[]];
+		const [, moduleRows, [person]] = read as [unknown, ModuleRow[], PersonRow[]];
 		// The order of refusals: no session (401), a group that is not yours (400, whatever
 		// the box), no such box (404), then the rules.
 		const actor: Actor | null = bySession ? booker.judge(person) : booker;
@@ -139,7 +152,7 @@ export async function book(
 				fields: { groupId: 'Choose one of your groups.' }
 			});
 		}
-		const near = readNear(read.slice(2));
+		const near = readNear(read.slice(4));
 		if (!near)
 			throw new ServiceError(404, 'The box was not found.', { fields: { boxId: 'No such box.' } });
 
