@@ -9,6 +9,8 @@ const pool = mysql.createPool({
 	timezone: 'Z'
 });
 const port = Number(process.env.PORT);
+/** LONGEST_HOLD_MS of src/lib/domain/bookings.ts: the longest booking (7 days) and purge (12 h). */
+const LONGEST_HOLD_MS = 7.5 * 86_400_000;
 
 const server = createServer(async (req, res) => {
 	let raw = '';
@@ -26,9 +28,11 @@ const server = createServer(async (req, res) => {
 	try {
 		await conn.beginTransaction();
 		await conn.query('SELECT id FROM boxes WHERE id = ? FOR UPDATE', [body.boxId]);
+		// With the same lower bound on start_at as Boxwright's read (no booking and purge
+		// lasts longer than 7.5 days), so neither side reads a box's whole history.
 		const [overlap] = await conn.query(
-			"SELECT id FROM bookings WHERE box_id = ? AND status IN ('pending','confirmed') AND start_at < ? AND blocked_until > ? LIMIT 1",
-			[body.boxId, end, start]
+			"SELECT id FROM bookings WHERE box_id = ? AND status IN ('pending','confirmed') AND start_at < ? AND blocked_until > ? AND start_at >= ? LIMIT 1",
+			[body.boxId, end, start, new Date(start.getTime() - LONGEST_HOLD_MS)]
 		);
 		if (overlap.length) {
 			await conn.rollback();

@@ -9,6 +9,9 @@
 //   3. two app processes each writing on a node of its own (node1 and node2 through their
 //      frontends), 10 connections each on the same boxes: bookings on one box from both
 //      nodes conflict at certification and run again, the hardest case for the cluster.
+//   4. bench:booking's five targets in alternating rounds (lib/decisions.mjs), through the
+//      balancer: the bare node:http + mysql2 endpoint on the database frontend, the floor,
+//      a taken slot and free slots through HAProxy's app frontend.
 //
 // A decision is a 201 (booked) or a 409/422 (refused); anything else is counted apart.
 import autocannon from 'autocannon';
@@ -17,6 +20,7 @@ import { openSync } from 'node:fs';
 import { join } from 'node:path';
 import mysql from 'mysql2/promise';
 import { ensureBuild, ensureDependencies, loadEnvFile, log, root } from '../lib/setup.mjs';
+import { measureDecisions } from './lib/decisions.mjs';
 
 loadEnvFile();
 ensureDependencies();
@@ -39,7 +43,7 @@ const stack = clusterStack({
 	mailFolder: 'bench-mail',
 	appOutput: 'log',
 	seedEnv: {},
-	appEnv: { LOG_LEVEL: 'warn' }
+	appEnv: { LOG_LEVEL: 'warn', BENCH_FLOOR: '1' }
 });
 
 /** @type {import('node:child_process').ChildProcess[]} */
@@ -235,6 +239,31 @@ try {
 		`\nratio two processes via HAProxy / one process on one node: ${(balanced / one).toFixed(2)}` +
 			`\nratio two writer nodes / one process on one node: ${(twoWriters / one).toFixed(2)}`
 	);
+
+	// 4. The same targets as bench:booking, through the balancer.
+	const barePort = secondWriterPort + 1;
+	const bare = spawn(process.execPath, ['scripts/bench/baseline-booking.mjs'], {
+		cwd: root,
+		env: { ...process.env, DATABASE_URL: stack.databaseUrl(), PORT: String(barePort) },
+		stdio: ['ignore', 'pipe', 'inherit']
+	});
+	extra.push(bare);
+	await new Promise((ready) =>
+		bare.stdout?.on('data', (chunk) => String(chunk).includes('ready') && ready(undefined))
+	);
+	const through = await mysql.createConnection({ uri: stack.databaseUrl(), timezone: 'Z' });
+	console.log('\nThrough the balancer (the bare endpoint on the database frontend):');
+	await measureDecisions({
+		sql: through,
+		appUrl: stack.appUrl,
+		bareUrl: `http://127.0.0.1:${barePort}`,
+		rounds: Number(process.env.BENCH_ROUNDS ?? 5),
+		seconds: Number(process.env.BENCH_ROUND_SECONDS ?? 4),
+		connections,
+		boxCount: 20,
+		extraHeaders: { 'x-forwarded-for': '127.0.0.1' }
+	});
+	await through.end();
 } catch (e) {
 	console.error(`[boxwright] ${/** @type {Error} */ (e).message}`);
 	code = 1;

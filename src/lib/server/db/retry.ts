@@ -310,6 +310,20 @@ export class Batches {
 		return [...results.slice(0, ahead), ...results.slice(ahead + 1)];
 	}
 
+	/**
+	 * Ends the transaction now, without waiting for ROLLBACK's answer: a refusal is known, and
+	 * the box lock is given up before the refusal's answer is even built. The connection goes
+	 * back to the pool once ROLLBACK has answered (runBatches).
+	 */
+	rollback() {
+		if (!this.open) return;
+		this.open = false;
+		this.ending = send(this.connection, 'ROLLBACK').then(() => undefined);
+	}
+
+	/** A ROLLBACK sent by rollback(), until it answers. */
+	ending?: Promise<void>;
+
 	/** `text`, then COMMIT; the answers of `text`'s statements. */
 	async commit(text: string, values: unknown[]): Promise<unknown[]> {
 		this.phase = 'commit';
@@ -344,6 +358,11 @@ async function batchAttempt<T>(
 		return { ok: false, error, phase: tx.phase };
 	} finally {
 		if (broken) connection.destroy();
+		else if (tx.ending)
+			tx.ending.then(
+				() => connection.release(),
+				() => connection.destroy()
+			);
 		else if (!tx.open) connection.release();
 		// A refusal (or a failed batch) leaves the transaction open. Its ROLLBACK is not
 		// waited for: the answer goes out while it runs, and the connection goes back to the

@@ -56,10 +56,12 @@ const WHO_SQL = {
 
 /**
  * The gates: the box's required modules joined to the person's certifications in them, then
- * the person (with their session when it is checked here), their e-mail setting and billing.
+ * the person (with their session when it is checked here), their e-mail setting and billing:
+ * the group they joined first, and whether they are in the group they chose (only asked when
+ * they chose one: a subquery fewer for everyone else).
  */
-const GATES_SQL = `SELECT m.id AS module_id, m.name, c.granted_at, c.expires_at
-	FROM box_required_modules r
+const gatesSql = (chosenGroup: boolean) => `SELECT m.id AS module_id, m.name, c.granted_at,
+	c.expires_at FROM box_required_modules r
 	JOIN training_modules m ON m.id = r.module_id
 	LEFT JOIN certifications c
 		ON c.module_id = r.module_id AND c.user_id = @user AND c.revoked_at IS NULL
@@ -67,9 +69,14 @@ const GATES_SQL = `SELECT m.id AS module_id, m.name, c.granted_at, c.expires_at
 SELECT u.id AS user_id, s.expires_at, u.email, u.name, u.role, u.status, u.email_confirmations,
 	(SELECT gm.group_id FROM group_memberships gm
 		WHERE gm.user_id = u.id AND gm.status = 'active' ORDER BY gm.id LIMIT 1) AS default_group,
-	EXISTS (SELECT 1 FROM group_memberships gm
-		WHERE gm.user_id = u.id AND gm.group_id = ? AND gm.status = 'active') AS in_chosen_group
+	${
+		chosenGroup
+			? `EXISTS (SELECT 1 FROM group_memberships gm
+		WHERE gm.user_id = u.id AND gm.group_id = ? AND gm.status = 'active')`
+			: '?'
+	} AS in_chosen_group
 	FROM users u LEFT JOIN sessions s ON s.id = ? WHERE u.id = @user`;
+const GATES_SQL = { chosen: gatesSql(true), own: gatesSql(false) };
 
 type ModuleRow = {
 	module_id: number;
@@ -133,7 +140,10 @@ export async function book(
 				})
 			],
 			{
-				text: [bySession ? WHO_SQL.session : WHO_SQL.actor, GATES_SQL].join(';\n'),
+				text: [
+					bySession ? WHO_SQL.session : WHO_SQL.actor,
+					input.groupId === undefined ? GATES_SQL.own : GATES_SQL.chosen
+				].join(';\n'),
 				values: [
 					bySession ? booker.sessionId : booker.id,
 					input.boxId,
@@ -173,6 +183,7 @@ export async function book(
 		});
 		const refused = refusalStatus(result);
 		if (refused) {
+			tx.rollback();
 			bookingDecisions.inc({ outcome: 'refused', code: result.reasons[0]?.code ?? 'unknown' });
 			throw refusal(result.reasons, refused);
 		}
