@@ -24,7 +24,9 @@ export function send<T = unknown>(
 	text: string,
 	values: unknown[] = []
 ): Promise<T> {
-	noteStatement();
+	// The pool's own query is counted where statement-count.ts wraps it; a lent connection's
+	// is counted here.
+	if (!('getConnection' in target)) noteStatement();
 	return new Promise((resolve, reject) => {
 		target.query(text, values, (error, results) => (error ? reject(error) : resolve(results as T)));
 	});

@@ -11,13 +11,7 @@ import type { BookingInput } from '$lib/validation/bookings';
 import { config } from '../config';
 import { db, type Transaction } from '../db';
 import { defaultGroupId, lockBoxForBooking } from '../db/queries';
-import {
-	bookings,
-	boxRequiredModules,
-	certifications,
-	trainingModules,
-	users
-} from '../db/schema';
+import { bookings, boxRequiredModules, certifications, trainingModules, users } from '../db/schema';
 import { bookingConfirmed } from '../mail/messages';
 import { enqueue } from '../mail/outbox';
 import { notFound, ServiceError } from './errors';
