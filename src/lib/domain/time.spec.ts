@@ -1,3 +1,4 @@
+import { Settings } from 'luxon';
 import { describe, expect, it } from 'vitest';
 import {
 	CLOCK_TIME_PATTERN,
@@ -148,6 +149,31 @@ describe('a time of day as typed, on the 24-hour clock', () => {
 		expect(fromLocal('2026-12-04', '9:5', tz)).toBeNull();
 		// 02:30 on 29 Mar 2026 is skipped when Berlin's clocks go forward.
 		expect(fromLocal('2026-03-29', '0230', tz)).toBeNull();
+	});
+
+	it('reads a time the clocks show twice as its first occurrence, whatever the date today', () => {
+		// Berlin goes back from 03:00 CEST to 02:00 CET on 25 Oct 2026 (EU Directive 2000/84/EC:
+		// the last Sunday of October at 01:00 UTC); 02:30 comes at 00:30 UTC and at 01:30 UTC.
+		// Sydney goes back from 03:00 AEDT to 02:00 AEST on 5 Apr 2026 (NSW, first Sunday of
+		// April); Lord Howe by half an hour, from 02:00 to 01:30, the same night.
+		const cases: [string, string, string, string][] = [
+			['Europe/Berlin', '2026-10-25', '02:30', '2026-10-25T00:30:00Z'],
+			['America/New_York', '2026-11-01', '01:15', '2026-11-01T05:15:00Z'],
+			['Australia/Sydney', '2026-04-05', '02:45', '2026-04-04T15:45:00Z'],
+			['Australia/Lord_Howe', '2026-04-05', '01:45', '2026-04-04T14:45:00Z']
+		];
+		for (const today of ['2026-07-01T12:00:00Z', '2026-12-01T12:00:00Z']) {
+			Settings.now = () => Date.parse(today);
+			try {
+				for (const [zone, date, time, first] of cases)
+					expect(fromLocal(date, time, zone), `${zone} ${time}, today ${today}`).toEqual(at(first));
+			} finally {
+				Settings.now = () => Date.now();
+			}
+		}
+		// Outside the repeated hour nothing changes.
+		expect(fromLocal('2026-10-25', '03:30', tz)).toEqual(at('2026-10-25T02:30:00Z'));
+		expect(fromLocal('2026-10-25', '01:30', tz)).toEqual(at('2026-10-24T23:30:00Z'));
 	});
 });
 

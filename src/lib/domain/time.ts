@@ -57,11 +57,27 @@ export function formatDateLong(date: string | null | undefined): string {
 export function fromLocal(date: string, typed: string, tz: string): Date | null {
 	const time = parseClockTime(typed);
 	if (time === null) return null;
-	const dt = DateTime.fromISO(`${date}T${time}`, { zone: zoneOf(tz) });
+	const zone = zoneOf(tz);
+	const dt = DateTime.fromISO(`${date}T${time}`, { zone });
 	if (!dt.isValid) return null;
 	// A wall-clock time skipped by a spring-forward change does not exist: refuse it.
 	if (dt.toFormat('yyyy-MM-dd') !== date || dt.toFormat('HH:mm') !== time) return null;
-	return dt.toJSDate();
+	return firstOccurrence(dt).toJSDate();
+}
+
+/**
+ * A wall-clock time the clocks show twice (the hour repeated when they go back) read as its
+ * first occurrence, as RFC 5545 §3.3.5 reads such a local time. luxon alone picks by the
+ * offset in force today, so the same typed time would have meant another hour in summer.
+ * Just after the clocks went back the offset is smaller than a few hours before: the same
+ * wall time then came that much earlier too.
+ */
+function firstOccurrence(dt: DateTime): DateTime {
+	const ts = dt.toMillis();
+	const shiftMin = dt.zone.offset(ts - 6 * 3_600_000) - dt.zone.offset(ts);
+	if (shiftMin <= 0) return dt;
+	const first = DateTime.fromMillis(ts - shiftMin * 60_000, { zone: dt.zone });
+	return first.toFormat('yyyy-MM-dd HH:mm:ss') === dt.toFormat('yyyy-MM-dd HH:mm:ss') ? first : dt;
 }
 
 // The helpers below write dates from wallParts (wall-clock.ts), exactly as luxon's toFormat and
@@ -181,7 +197,7 @@ export function wallClock(at: Date | string, tz: string): string {
 
 /** A floating wall-clock string ("2026-12-02T10:00…") read as time in `tz`. */
 export function fromWallClock(value: string, tz: string): Date {
-	return DateTime.fromISO(value.slice(0, 19), { zone: zoneOf(tz) }).toJSDate();
+	return firstOccurrence(DateTime.fromISO(value.slice(0, 19), { zone: zoneOf(tz) })).toJSDate();
 }
 
 /** The zone's offset now, as "+01:00". */
