@@ -3,10 +3,10 @@
 // 2030 on boxes open ten years ahead, so the ISO weeks and the wall clock are the same on
 // every run; the outcome of a race may differ between runs, the guarantees may not.
 import { afterAll, describe, expect, it } from 'vitest';
-import { and, eq, inArray } from 'drizzle-orm';
+import { and, eq, inArray, sql } from 'drizzle-orm';
 import { auditLog, bookings, outbox } from '../../src/lib/server/db/schema';
 import { certify, closeTestDb, makeBox, makeModule, makeUser, testDb } from '../support/db';
-import { errorOf, signedIn, type Client } from '../support/http';
+import { Client, errorOf, signedIn } from '../support/http';
 import { sunkMail } from '../support/mail';
 import { until } from '../support/until';
 
@@ -155,5 +155,24 @@ describe('one person racing their own quota', () => {
 			0
 		);
 		expect(minutes).toBe(120);
+	});
+});
+
+describe('a request nobody is signed in for', () => {
+	it('is refused with 401 without queueing on the box lock', async () => {
+		const { boxId } = await membersOf(1);
+		const stranger = new Client();
+		// A cookie shaped like a session's, for no session at all.
+		stranger.setCookie('bw_session', 'A'.repeat(43));
+		const start = at(30 * 60);
+		const end = at(31 * 60);
+		// Another transaction holds the box lock until the stranger has been answered: were the
+		// stranger's request to take it, it would wait here until the lock wait timed out.
+		await testDb().transaction(async (tx) => {
+			await tx.execute(sql`UPDATE boxes SET lock_version = lock_version + 1 WHERE id = ${boxId}`);
+			const answer = await ask(stranger, boxId, start, end);
+			expect(answer.status).toBe(401);
+			expect(await errorOf(answer)).toEqual({ code: 'unauthenticated', message: 'Sign in first.' });
+		});
 	});
 });

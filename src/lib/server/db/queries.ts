@@ -113,8 +113,11 @@ const words = (list: readonly string[]) => list.map((w) => `'${w.replace(/'/g, "
  * The booking check's lock: a write to the box row (db/locks.ts), which a Galera cluster
  * certifies, so two nodes cannot both book one slot. It must be the transaction's first
  * statement that reads: the reads after it see everything committed before it was granted.
+ * Taken only for someone (@user set): a request whose session is unknown is refused without
+ * queueing on the box (MariaDB sees an impossible WHERE and locks nothing).
  */
-export const LOCK_SQL = 'UPDATE boxes SET lock_version = lock_version + 1 WHERE id = ?';
+export const LOCK_SQL =
+	'UPDATE boxes SET lock_version = lock_version + 1 WHERE id = ? AND @user IS NOT NULL';
 
 /**
  * What the lock protects, as text with `?` placeholders (values from nearValues), for the
@@ -129,7 +132,7 @@ export const LOCK_SQL = 'UPDATE boxes SET lock_version = lock_version + 1 WHERE 
  */
 export const NEAR_SQL = `SELECT id, name, room, status, atmosphere_state, slot_step_min,
 	min_length_min, max_length_min, horizon_days, weekly_quota_min, purge_min, needs_approval,
-	excluded_classes FROM boxes WHERE id = ? FOR UPDATE;
+	excluded_classes FROM boxes WHERE id = ? AND @user IS NOT NULL FOR UPDATE;
 SELECT 'other' AS src, id, start_at, end_at, blocked_until, status FROM bookings
 	WHERE box_id = ? AND status IN (${words(openStatuses)}) AND id <> ?
 	AND start_at < ? AND blocked_until > ? AND start_at >= ?
@@ -190,8 +193,9 @@ function withValues(text: string, values: unknown[]): SQL {
  * (services/bookings.ts changeBooking). Null when there is no such box.
  */
 export async function lockBoxForBooking(tx: Transaction, q: BookingRequestRead) {
-	const text = `${LOCK_SQL};\nSET @user = ?;\n${NEAR_SQL}`;
-	const values = [q.boxId, q.userId, ...nearValues(q)];
+	// SET is no read: it may come first without fixing the snapshot before the lock.
+	const text = `SET @user = ?;\n${LOCK_SQL};\n${NEAR_SQL}`;
+	const values = [q.userId, q.boxId, ...nearValues(q)];
 	const [results] = (await tx.execute(withValues(text, values))) as unknown as [unknown[]];
 	return readNear(results.slice(2));
 }
