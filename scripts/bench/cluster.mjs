@@ -20,7 +20,7 @@ import { openSync } from 'node:fs';
 import { join } from 'node:path';
 import mysql from 'mysql2/promise';
 import { ensureBuild, ensureDependencies, loadEnvFile, log, root } from '../lib/setup.mjs';
-import { measureDecisions } from './lib/decisions.mjs';
+import { measureDecisions, signedInPeople } from './lib/decisions.mjs';
 
 loadEnvFile();
 ensureDependencies();
@@ -191,27 +191,7 @@ try {
 		return ids;
 	};
 	/** @type {Person[]} */
-	const people = [];
-	for (let n = 0; n < connections; n++) {
-		const email = `cluster-bench${n}@example.org`;
-		const [r] = /** @type {any} */ (
-			await sql.query(
-				"INSERT INTO users (email, name, password_hash, role, status) SELECT ?, ?, password_hash, 'member', 'active' FROM users WHERE email = 'member@example.org'",
-				[email, `Cluster bench ${n}`]
-			)
-		);
-		const signIn = await fetch(`${stack.appUrl}/api/session`, {
-			method: 'POST',
-			headers: { 'content-type': 'application/json' },
-			body: JSON.stringify({ email, password: 'demo-pass-2026' })
-		});
-		if (signIn.status !== 200) throw new Error(`sign-in gave ${signIn.status}`);
-		const cookie = signIn.headers
-			.getSetCookie()
-			.map((c) => c.split(';')[0])
-			.join('; ');
-		people.push({ id: r.insertId, cookie });
-	}
+	const people = await signedInPeople(sql, stack.appUrl, connections, 'cluster-bench');
 
 	log(`booking decisions, ${connections} connections, ${seconds} s each, ${boxCount} boxes…`);
 	console.log('');

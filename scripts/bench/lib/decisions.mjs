@@ -19,6 +19,40 @@ import autocannon from 'autocannon';
 import { log } from '../../lib/setup.mjs';
 
 /**
+ * `count` members (copies of the demo member, with its password) signed in through `appUrl`.
+ * @param {import('mysql2/promise').Connection} sql
+ * @param {string} appUrl
+ * @param {number} count
+ * @param {string} label
+ * @param {Record<string, string>} [extraHeaders]
+ */
+export async function signedInPeople(sql, appUrl, count, label, extraHeaders = {}) {
+	/** @type {{ id: number, cookie: string }[]} */
+	const people = [];
+	for (let n = 0; n < count; n++) {
+		const email = `${label}${n}-${Date.now().toString(36)}@example.org`;
+		const [r] = /** @type {any} */ (
+			await sql.query(
+				"INSERT INTO users (email, name, password_hash, role, status) SELECT ?, ?, password_hash, 'member', 'active' FROM users WHERE email = 'member@example.org'",
+				[email, `${label} ${n}`]
+			)
+		);
+		const signIn = await fetch(`${appUrl}/api/session`, {
+			method: 'POST',
+			headers: { 'content-type': 'application/json', ...extraHeaders },
+			body: JSON.stringify({ email, password: 'demo-pass-2026' })
+		});
+		if (signIn.status !== 200) throw new Error(`sign-in gave ${signIn.status}`);
+		const cookie = signIn.headers
+			.getSetCookie()
+			.map((c) => c.split(';')[0])
+			.join('; ');
+		people.push({ id: r.insertId, cookie });
+	}
+	return people;
+}
+
+/**
  * @param {{ sql: import('mysql2/promise').Connection, appUrl: string, bareUrl: string,
  *   rounds: number, seconds: number, connections: number, boxCount: number,
  *   extraHeaders?: Record<string, string> }} o
@@ -50,28 +84,7 @@ export async function measureDecisions(o) {
 	);
 
 	// Twenty people, signed in, each held to the boxes' default weekly quota.
-	/** @type {{ id: number, cookie: string }[]} */
-	const people = [];
-	for (let n = 0; n < 20; n++) {
-		const email = `bench${n}-${Date.now().toString(36)}@example.org`;
-		const [r] = /** @type {any} */ (
-			await sql.query(
-				"INSERT INTO users (email, name, password_hash, role, status) SELECT ?, ?, password_hash, 'member', 'active' FROM users WHERE email = 'member@example.org'",
-				[email, `Bench ${n}`]
-			)
-		);
-		const signIn = await fetch(`${o.appUrl}/api/session`, {
-			method: 'POST',
-			headers: { 'content-type': 'application/json', ...o.extraHeaders },
-			body: JSON.stringify({ email, password: 'demo-pass-2026' })
-		});
-		if (signIn.status !== 200) throw new Error(`sign-in gave ${signIn.status}`);
-		const cookie = signIn.headers
-			.getSetCookie()
-			.map((c) => c.split(';')[0])
-			.join('; ');
-		people.push({ id: r.insertId, cookie });
-	}
+	const people = await signedInPeople(sql, o.appUrl, 20, 'bench', o.extraHeaders);
 
 	const startAt = new Date();
 	startAt.setUTCHours(24, 0, 0, 0);
