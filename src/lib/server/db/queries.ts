@@ -5,6 +5,7 @@ import { getTableName, gte, inArray, sql, type SQL } from 'drizzle-orm';
 import type { MySqlColumn } from 'drizzle-orm/mysql-core';
 import type { HeldBooking, Hold, OutageSpan, Span } from '$lib/domain/booking-rules';
 import type { AtmosphereState, BoxStatus } from '$lib/domain/boxes';
+import type { Role } from '$lib/domain/roles';
 import {
 	LONGEST_HOLD_MS,
 	LONGEST_PURGE_MS,
@@ -13,7 +14,7 @@ import {
 	type BookingStatus
 } from '$lib/domain/bookings';
 import type { Transaction } from './index';
-import { bookings } from './schema';
+import { bookings, type UserStatus } from './schema';
 
 /**
  * The lower bound on bookings.start_at for a read of the bookings that reach into a window
@@ -32,14 +33,15 @@ export const startsFrom = (at: Date) =>
  * subquery the builder's column names lose their tables.
  */
 export const defaultGroupId = (userId: number | MySqlColumn): SQL<number | null> =>
-	sql<number | null>`(SELECT gm.group_id FROM group_memberships gm
-		WHERE gm.user_id = ${typeof userId === 'number' ? userId : qualified(userId)}
-		AND gm.status = 'active' ORDER BY gm.id LIMIT 1)`;
+	(typeof userId === 'number'
+		? withValues(defaultGroupText('?'), [userId])
+		: sql.raw(defaultGroupText(`\`${getTableName(userId.table)}\`.\`${userId.name}\``))) as SQL<
+		number | null
+	>;
 
-/** A column with its table's name, as a subquery must name an outer column. */
-function qualified(column: MySqlColumn): SQL {
-	return sql`${sql.identifier(getTableName(column.table))}.${sql.identifier(column.name)}`;
-}
+/** defaultGroupId's text, for a person named by `user` (a column, `?`, `@user`). */
+const defaultGroupText = (user: string) => `(SELECT gm.group_id FROM group_memberships gm
+		WHERE gm.user_id = ${user} AND gm.status = 'active' ORDER BY gm.id LIMIT 1)`;
 
 type RawBox = {
 	id: number;
@@ -174,6 +176,74 @@ export function readNear([lockedRows, rows]: unknown[]) {
 		})),
 		outages: of('outage').map((r): OutageSpan => ({ id: r.id, ...span(r), reason: r.status })),
 		userBookings: of('mine').map(span)
+	};
+}
+
+/**
+ * The gates of a booking, for the person in @user: the box's required modules joined to the
+ * person's certifications in them, then the person (with their session, when the request's
+ * session is checked here), their e-mail setting and billing: the group they joined first
+ * (defaultGroupId), and whether they are in the group they chose (asked only when they chose
+ * one: a subquery fewer for everyone else). They do not race with other bookings, so they
+ * are read outside the lock. Values from gateValues.
+ */
+const gatesSql = (chosenGroup: boolean) => `SELECT m.id AS module_id, m.name, c.granted_at,
+	c.expires_at FROM box_required_modules r
+	JOIN training_modules m ON m.id = r.module_id
+	LEFT JOIN certifications c
+		ON c.module_id = r.module_id AND c.user_id = @user AND c.revoked_at IS NULL
+	WHERE r.box_id = ? ORDER BY r.module_id;
+SELECT u.id AS user_id, s.expires_at, u.email, u.name, u.role, u.status, u.email_confirmations,
+	${defaultGroupText('u.id')} AS default_group,
+	${
+		chosenGroup
+			? `EXISTS (SELECT 1 FROM group_memberships gm
+		WHERE gm.user_id = u.id AND gm.group_id = ? AND gm.status = 'active')`
+			: '?'
+	} AS in_chosen_group
+	FROM users u LEFT JOIN sessions s ON s.id = ? WHERE u.id = @user`;
+export const GATES_SQL = { chosen: gatesSql(true), own: gatesSql(false) };
+
+/** GATES_SQL's text for `groupId` (the group the person chose, if any) and its values. */
+export function gates(boxId: number, groupId?: number, sessionId?: string) {
+	return {
+		text: groupId === undefined ? GATES_SQL.own : GATES_SQL.chosen,
+		values: [boxId, groupId ?? null, sessionId ?? null]
+	};
+}
+
+type ModuleRow = {
+	module_id: number;
+	name: string;
+	granted_at: Date | null;
+	expires_at: Date | null;
+};
+
+/** The person as GATES_SQL reads them (the session's columns null unless it was asked for). */
+export type GatesPerson = {
+	user_id: number;
+	expires_at: Date;
+	email: string;
+	name: string;
+	role: Role;
+	status: UserStatus;
+	email_confirmations: number;
+	default_group: number | null;
+	in_chosen_group: number | null;
+};
+
+/** GATES_SQL's answers as checkBooking takes them, and the person (undefined: nobody). */
+export function readGates([moduleRows, people]: unknown[]) {
+	const rows = moduleRows as ModuleRow[];
+	const [person] = people as GatesPerson[];
+	return {
+		requiredModules: rows.map((m) => ({ id: m.module_id, name: m.name })),
+		certs: rows.flatMap((m) =>
+			m.granted_at && m.expires_at
+				? [{ moduleId: m.module_id, grantedAt: m.granted_at, expiresAt: m.expires_at }]
+				: []
+		),
+		person: person as GatesPerson | undefined
 	};
 }
 

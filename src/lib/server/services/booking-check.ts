@@ -1,50 +1,33 @@
 // The booking check of a move: the training gates read before the lock, then the box row
 // locked and what it protects read in one round trip (lockBoxForBooking), and checkBooking
 // deciding; the refusal in the contract's shape, and the confirmation queued with the
-// change. A new booking goes through booking-decision.ts, which reads the same under the
-// lock in its first batch; services/bookings.ts makes, moves and cancels.
-import { and, eq, isNull } from 'drizzle-orm';
+// change. A new booking goes through booking-decision.ts, which sends the same gates and the
+// same locked read in its first batch; services/bookings.ts makes, moves and cancels.
+import { eq } from 'drizzle-orm';
 import { checkBooking, quotaSpan, type Reason } from '$lib/domain/booking-rules';
 import { openStatuses, type BookingStatus } from '$lib/domain/bookings';
 import { formatRange, isoInZone } from '$lib/domain/time';
 import type { BookingInput } from '$lib/validation/bookings';
 import { config } from '../config';
-import { db, type Transaction } from '../db';
-import { defaultGroupId, lockBoxForBooking } from '../db/queries';
-import { bookings, boxRequiredModules, certifications, trainingModules, users } from '../db/schema';
+import { db, pool, type Transaction } from '../db';
+import { gates, lockBoxForBooking, readGates as readGatesRows } from '../db/queries';
+import { send } from '../db/raw';
+import { bookings } from '../db/schema';
 import { bookingConfirmed } from '../mail/messages';
 import { enqueue } from '../mail/outbox';
 import { notFound, ServiceError } from './errors';
 
-/** What does not race with other bookings: read before the box lock is taken. */
+/**
+ * What does not race with other bookings, read before the box lock is taken: the same gates
+ * (GATES_SQL) as a new booking's, for the holder `userId`, in one round trip.
+ */
 export async function readGates(userId: number, boxId: number) {
-	const [requiredModules, certs, [person]] = await Promise.all([
-		db
-			.select({ id: trainingModules.id, name: trainingModules.name })
-			.from(boxRequiredModules)
-			.innerJoin(trainingModules, eq(trainingModules.id, boxRequiredModules.moduleId))
-			.where(eq(boxRequiredModules.boxId, boxId)),
-		db
-			.select({
-				moduleId: certifications.moduleId,
-				grantedAt: certifications.grantedAt,
-				expiresAt: certifications.expiresAt
-			})
-			.from(certifications)
-			.where(and(eq(certifications.userId, userId), isNull(certifications.revokedAt))),
-		db
-			.select({
-				email: users.email,
-				name: users.name,
-				emailConfirmations: users.emailConfirmations,
-				// The group billed for the booking, fixed when it is made: joining another group
-				// later moves nothing.
-				groupId: defaultGroupId(users.id)
-			})
-			.from(users)
-			.where(eq(users.id, userId))
+	const gate = gates(boxId);
+	const results = await send<unknown[]>(pool.pool, `SET @user = ?;\n${gate.text}`, [
+		userId,
+		...gate.values
 	]);
-	return { requiredModules, certs, person };
+	return readGatesRows(results.slice(1));
 }
 
 export type Gates = Awaited<ReturnType<typeof readGates>>;
@@ -140,6 +123,13 @@ export function mustBeOpen(
 		throw new ServiceError(409, `This booking is checked out; it can no longer be ${what}.`);
 }
 
+/**
+ * The dedupe key of a booking's confirmation at a SEQUENCE: one message per change. `id` may
+ * stand for a booking whose id only SQL knows (booking-decision.ts fills it in there).
+ */
+export const confirmationKey = (id: number | string, sequence: number) =>
+	`booking:${id}:confirmed:${sequence}`;
+
 /** The holder's confirmation (an invitation with the booking's UID), in the caller's transaction. */
 export async function queueConfirmation(
 	tx: Transaction,
@@ -154,7 +144,7 @@ export async function queueConfirmation(
 		message.kind = 'booking_changed';
 		message.subject = `Changed: ${box.name}, ${formatRange(b.startAt, b.endAt, config.facilityTz)}`;
 	}
-	await enqueue(tx, person, message, `booking:${b.id}:confirmed:${b.sequence}`);
+	await enqueue(tx, person, message, confirmationKey(b.id, b.sequence));
 }
 
 /** One week of a series that could not be made, as the client sees it. */

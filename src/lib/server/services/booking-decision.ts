@@ -34,13 +34,13 @@ import { checkBooking, quotaSpan, refusalStatus } from '$lib/domain/booking-rule
 import type { BookingStatus } from '$lib/domain/bookings';
 import type { BookingInput } from '$lib/validation/bookings';
 import { config } from '../config';
-import { SessionCheck, type SessionRow } from '../auth';
-import { LOCK_SQL, NEAR_SQL, nearValues, readNear } from '../db/queries';
+import { SessionCheck } from '../auth';
+import { gates, LOCK_SQL, NEAR_SQL, nearValues, readGates, readNear } from '../db/queries';
 import { batchTransaction } from '../db/transaction';
 import { bookingConfirmed, icsMethodOf } from '../mail/messages';
 import { bookingDecisions, currentRequestId } from '../observability';
 import type { Actor } from './accounts';
-import { refusal } from './booking-check';
+import { confirmationKey, refusal } from './booking-check';
 import { ServiceError } from './errors';
 
 /**
@@ -52,42 +52,6 @@ import { ServiceError } from './errors';
 const WHO_SQL = {
 	actor: 'SET @user = ?',
 	session: 'SET @user = (SELECT user_id FROM sessions WHERE id = ?)'
-};
-
-/**
- * The gates: the box's required modules joined to the person's certifications in them, then
- * the person (with their session when it is checked here), their e-mail setting and billing:
- * the group they joined first, and whether they are in the group they chose (only asked when
- * they chose one: a subquery fewer for everyone else).
- */
-const gatesSql = (chosenGroup: boolean) => `SELECT m.id AS module_id, m.name, c.granted_at,
-	c.expires_at FROM box_required_modules r
-	JOIN training_modules m ON m.id = r.module_id
-	LEFT JOIN certifications c
-		ON c.module_id = r.module_id AND c.user_id = @user AND c.revoked_at IS NULL
-	WHERE r.box_id = ? ORDER BY r.module_id;
-SELECT u.id AS user_id, s.expires_at, u.email, u.name, u.role, u.status, u.email_confirmations,
-	(SELECT gm.group_id FROM group_memberships gm
-		WHERE gm.user_id = u.id AND gm.status = 'active' ORDER BY gm.id LIMIT 1) AS default_group,
-	${
-		chosenGroup
-			? `EXISTS (SELECT 1 FROM group_memberships gm
-		WHERE gm.user_id = u.id AND gm.group_id = ? AND gm.status = 'active')`
-			: '?'
-	} AS in_chosen_group
-	FROM users u LEFT JOIN sessions s ON s.id = ? WHERE u.id = @user`;
-const GATES_SQL = { chosen: gatesSql(true), own: gatesSql(false) };
-
-type ModuleRow = {
-	module_id: number;
-	name: string;
-	granted_at: Date | null;
-	expires_at: Date | null;
-};
-type PersonRow = SessionRow & {
-	email_confirmations: number;
-	default_group: number | null;
-	in_chosen_group: number;
 };
 
 const INSERT_BOOKING_SQL = `INSERT INTO bookings (box_id, user_id, group_id, start_at, end_at,
@@ -103,7 +67,9 @@ const AUDIT_SQL = (firstOfSeries: boolean) =>
 const CONFIRMATION_SQL = `INSERT IGNORE INTO outbox (recipient_id, to_address, kind, subject,
 	template, data, ics_method, dedupe_key, request_id)
 	VALUES (?, ?, ?, ?, ?, JSON_SET(?, '$.booking.id', @booking), ?,
-		CONCAT('booking:', @booking, ':confirmed:0'), ?)`;
+		CONCAT(?, @booking, ?), ?)`;
+// confirmationKey(@booking, 0), split where SQL puts the id.
+const CONFIRMATION_KEY = confirmationKey('\u0000', 0).split('\u0000');
 
 /** Which series a booking joins: none, a new one (this booking's id), or an existing one. */
 export type SeriesPlace = null | 'first' | number;
@@ -124,6 +90,7 @@ export async function book(
 ) {
 	const tz = config.facilityTz;
 	const bySession = booker instanceof SessionCheck;
+	const gate = gates(input.boxId, input.groupId, bySession ? booker.sessionId : undefined);
 	const made = await batchTransaction(async (tx) => {
 		// The gates go ahead of START TRANSACTION in the same round trip: they do not race
 		// with other bookings, and read outside the transaction they neither fix its snapshot
@@ -140,19 +107,11 @@ export async function book(
 				})
 			],
 			{
-				text: [
-					bySession ? WHO_SQL.session : WHO_SQL.actor,
-					input.groupId === undefined ? GATES_SQL.own : GATES_SQL.chosen
-				].join(';\n'),
-				values: [
-					bySession ? booker.sessionId : booker.id,
-					input.boxId,
-					input.groupId ?? null,
-					bySession ? booker.sessionId : null
-				]
+				text: `${bySession ? WHO_SQL.session : WHO_SQL.actor};\n${gate.text}`,
+				values: [bySession ? booker.sessionId : booker.id, ...gate.values]
 			}
 		);
-		const [, moduleRows, [person]] = read as [unknown, ModuleRow[], PersonRow[]];
+		const { requiredModules, certs, person } = readGates(read.slice(1, 3));
 		// The order of refusals: no session (401), a group that is not yours (400, whatever
 		// the box), no such box (404), then the rules.
 		const actor: Actor | null = bySession ? booker.judge(person) : booker;
@@ -167,16 +126,11 @@ export async function book(
 			throw new ServiceError(404, 'The box was not found.', { fields: { boxId: 'No such box.' } });
 
 		const { box } = near;
-		const requiredModules = moduleRows.map((m) => ({ id: m.module_id, name: m.name }));
 		const result = checkBooking(input, {
 			now,
 			tz,
 			box: { ...box, requiredModules },
-			certifications: moduleRows.flatMap((m) =>
-				m.granted_at && m.expires_at
-					? [{ moduleId: m.module_id, grantedAt: m.granted_at, expiresAt: m.expires_at }]
-					: []
-			),
+			certifications: certs,
 			others: near.others,
 			outages: near.outages,
 			userBookings: near.userBookings
@@ -247,6 +201,7 @@ export async function book(
 				message.template,
 				message.data,
 				icsMethodOf(message.template),
+				...CONFIRMATION_KEY,
 				currentRequestId()
 			);
 		}

@@ -306,10 +306,10 @@ export async function changeBooking(
 		// The time it held and no longer does may be what someone is waiting for.
 		if (moved)
 			await notifyFreedWatches(tx, b.boxId, { startAt: b.startAt, endAt: b.blockedUntil }, now);
-		if (status === 'confirmed' && gates.person?.emailConfirmations) {
+		if (status === 'confirmed' && gates.person?.email_confirmations) {
 			await queueConfirmation(
 				tx,
-				{ id: b.userId, ...gates.person },
+				{ id: b.userId, email: gates.person.email, name: gates.person.name },
 				{ id, startAt: start, endAt: end, purpose, sequence },
 				box,
 				true
